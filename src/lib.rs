@@ -1,0 +1,10 @@
+//! umbra: PCB fabrication files (Gerber RS-274X/X2, Excellon) into print-ready photomask films.
+//!
+//! The pipeline (see `docs/architecture.md`): load → parse/interpret → plan → layout →
+//! render → write. Each stage knows only its neighbours.
+
+pub mod diag;
+pub mod excellon;
+pub mod gerber;
+pub mod image;
+pub mod limits;

@@ -8,3 +8,5 @@ pub mod excellon;
 pub mod gerber;
 pub mod image;
 pub mod limits;
+pub mod output;
+pub mod raster;

@@ -8,6 +8,8 @@ use crate::image::LayerImage;
 use crate::limits::Limits;
 use std::collections::BTreeMap;
 
+pub mod macros;
+
 /// Units the file was written in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
 pub enum Units {

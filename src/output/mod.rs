@@ -1,0 +1,1 @@
+//! Writers: PNG (1-bit with pHYs), PDF (exact page size), manifest JSON.

@@ -12,6 +12,8 @@
 //! - Every coordinate and size in the returned shape is finite, and diameters are >= 0.
 //! - Exposure-off primitives only cut what the macro itself drew before them (spec §4.5.1):
 //!   the result is a `Shape::Composite` whose subtract parts never reach the image.
+//! - Composites are flat: no part of the returned shape is itself a composite. Rings are
+//!   full-circle strokes, thermal pieces are contours of lines and arcs.
 
 mod expr;
 mod geometry;
@@ -230,6 +232,13 @@ impl MacroDef {
                         modifiers,
                     };
                     let built = primitives::build(*code, &mut ctx, max - counted)?;
+                    if !built.shapes.iter().all(is_finite) {
+                        // Finite modifiers can still overflow (e.g. a rotation of coordinates
+                        // near the largest f64).
+                        return Err(
+                            ctx.error("its coordinates are too large to compute with".to_string())
+                        );
+                    }
                     // Each primitive counts once, a moiré once per ring and bar.
                     counted += if *code == PrimitiveCode::Moire {
                         built.shapes.len().max(1)
@@ -260,6 +269,29 @@ fn syntax_error(name: &str, file: &str, e: SyntaxError) -> InputError {
         e.pos,
         format!("aperture macro '{name}': {}", e.message),
     )
+}
+
+fn is_finite(shape: &Shape) -> bool {
+    let point = |p: &crate::image::Point| p.x.is_finite() && p.y.is_finite();
+    match shape {
+        Shape::Disc { center, diameter } => point(center) && diameter.is_finite(),
+        Shape::Stroke {
+            start,
+            end,
+            arc,
+            width,
+        } => {
+            point(start) && point(end) && arc.map_or(true, |(c, _)| point(&c)) && width.is_finite()
+        }
+        Shape::Polygon(c) => {
+            point(&c.start)
+                && c.segments.iter().all(|s| match s {
+                    crate::image::Segment::Line { to } => point(to),
+                    crate::image::Segment::Arc { to, center, .. } => point(to) && point(center),
+                })
+        }
+        Shape::Composite(parts) => parts.iter().all(|(_, s)| is_finite(s)),
+    }
 }
 
 /// `$n=expression`.
@@ -479,5 +511,37 @@ impl Modifiers for PrimitiveContext<'_, '_> {
         self.run
             .warnings
             .push(Warning::new(self.run.file, Some(self.pos), message));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn comments_are_recognised_on_the_raw_text() {
+        // Spec §4.5.1 (comment): code 0, then free text.
+        assert!(is_comment("0 pad for the Larkspur badge, rev 2"));
+        assert!(is_comment("\n0"));
+        assert!(is_comment("0 1 2"));
+        assert!(!is_comment("01,1,1,0,0"));
+        assert!(!is_comment("1,1,0,0,0"));
+        assert!(!is_comment("$1=0"));
+    }
+
+    #[test]
+    fn positions_follow_line_breaks() {
+        let l = locate("a\nbc", Pos::new(3, 5));
+        assert_eq!(l[0], ('a', Pos::new(3, 5)));
+        assert_eq!(l[1], ('\n', Pos::new(3, 6)));
+        assert_eq!(l[3], ('c', Pos::new(4, 2)));
+    }
+
+    #[test]
+    fn overflowing_geometry_is_an_error() {
+        let def = MacroDef::parse("BIG", &[("20,1,1,-$1,0,$1,0,45", Pos::new(1, 1))], "f").unwrap();
+        let mut w = Vec::new();
+        let r = def.instantiate(&[1.7e308], "f", Pos::new(9, 1), &Limits::default(), &mut w);
+        assert!(r.unwrap_err().message.contains("too large to compute with"));
     }
 }

@@ -28,7 +28,10 @@ impl Pos {
             .rposition(|&b| b == b'\n')
             .map(|i| i + 1)
             .unwrap_or(0);
-        let column = String::from_utf8_lossy(&before[line_start..]).chars().count() as u32 + 1;
+        let column = String::from_utf8_lossy(&before[line_start..])
+            .chars()
+            .count() as u32
+            + 1;
         Pos { line, column }
     }
 }

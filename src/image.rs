@@ -281,7 +281,9 @@ impl Contour {
         for s in &self.segments {
             match *s {
                 Segment::Line { to } => b.add_point(to),
-                Segment::Arc { to, center, turn } => add_arc_bounds(&mut b, cur, to, center, turn, 0.0),
+                Segment::Arc { to, center, turn } => {
+                    add_arc_bounds(&mut b, cur, to, center, turn, 0.0)
+                }
             }
             cur = s.end();
         }
@@ -586,7 +588,13 @@ fn dump_shape(s: &mut String, shape: &Shape) {
                     let _ = write!(s, " line {}", fmt_pt(*end));
                 }
                 Some((c, t)) => {
-                    let _ = write!(s, " arc {} {} c={}", turn_word(*t), fmt_pt(*end), fmt_pt(*c));
+                    let _ = write!(
+                        s,
+                        " arc {} {} c={}",
+                        turn_word(*t),
+                        fmt_pt(*end),
+                        fmt_pt(*c)
+                    );
                 }
             }
         }
@@ -598,7 +606,13 @@ fn dump_shape(s: &mut String, shape: &Shape) {
                         let _ = write!(s, " line {}", fmt_pt(to));
                     }
                     Segment::Arc { to, center, turn } => {
-                        let _ = write!(s, " arc {} {} c={}", turn_word(turn), fmt_pt(to), fmt_pt(center));
+                        let _ = write!(
+                            s,
+                            " arc {} {} c={}",
+                            turn_word(turn),
+                            fmt_pt(to),
+                            fmt_pt(center)
+                        );
                     }
                 }
             }
@@ -647,7 +661,10 @@ mod tests {
         let p = Point::new(1.0, 0.0);
         let c = Point::new(0.0, 0.0);
         assert_eq!(arc_sweep(p, p, c, Turn::Clockwise), -std::f64::consts::TAU);
-        assert_eq!(arc_sweep(p, p, c, Turn::CounterClockwise), std::f64::consts::TAU);
+        assert_eq!(
+            arc_sweep(p, p, c, Turn::CounterClockwise),
+            std::f64::consts::TAU
+        );
     }
 
     #[test]

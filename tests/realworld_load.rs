@@ -65,7 +65,11 @@ fn every_real_board_loads_with_sane_extents() {
             continue;
         }
         // Boards are between a few mm and about a metre (board 03 is 970 mm long).
-        if !(copper.width() > 2.0 && copper.width() < 1100.0 && copper.height() > 2.0 && copper.height() < 1100.0) {
+        if !(copper.width() > 2.0
+            && copper.width() < 1100.0
+            && copper.height() > 2.0
+            && copper.height() < 1100.0)
+        {
             failures.push(format!("{name}: implausible copper extents {copper:?}"));
         }
         // Outline drawn with zero-width or thin lines; copper may touch it, allow 0.5 mm.

@@ -56,8 +56,9 @@ fn iso_216_halving_rounds_down() {
 
 #[test]
 fn us_sizes_in_mm() {
-    // ANSI/ASME Y14.1: Letter 8.5 × 11 in, Legal 8.5 × 14 in, Tabloid 11 × 17 in;
-    // 1 in = 25.4 mm exactly (international inch).
+    // ANSI/ASME Y14.1: Letter (size A) 8.5 × 11 in, Tabloid (size B) 11 × 17 in; Legal
+    // 8.5 × 14 in (common US size, listed with Letter in docs/film-rules.md's sources);
+    // 1 in = 25.4 mm exactly (international inch of 1959).
     for (name, w, h) in [
         ("Letter", 215.9, 279.4),
         ("Legal", 215.9, 355.6),

@@ -17,8 +17,8 @@ fn size(name: &str) -> SheetSize {
 
 #[test]
 fn iso_216_a_series_matches_published_table() {
-    // The A-series table of ISO 216 (from memory of the published table; A4 and A3 also in
-    // docs/film-rules.md's source list): width × height in mm, portrait.
+    // The A-series table of ISO 216 (published values, from memory): width × height in mm,
+    // portrait.
     let table = [
         ("A0", 841.0, 1189.0),
         ("A1", 594.0, 841.0),
@@ -57,7 +57,7 @@ fn iso_216_halving_rounds_down() {
 #[test]
 fn us_sizes_in_mm() {
     // ANSI/ASME Y14.1: Letter (size A) 8.5 × 11 in, Tabloid (size B) 11 × 17 in; Legal
-    // 8.5 × 14 in (common US size, listed with Letter in docs/film-rules.md's sources);
+    // 8.5 × 14 in (common US size, from memory);
     // 1 in = 25.4 mm exactly (international inch of 1959).
     for (name, w, h) in [
         ("Letter", 215.9, 279.4),

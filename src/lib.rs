@@ -10,3 +10,4 @@ pub mod image;
 pub mod limits;
 pub mod output;
 pub mod raster;
+pub mod sheet;

@@ -138,7 +138,7 @@ fn label_lines_say_everything_the_trade_rules_ask_for() {
         "copper top, top side",
         "black = copper",
         "image mirrored, printed side toward board",
-        "edge offset +10.0 µm asked, +0.0 µm made",
+        "edge offset +10.0 µm requested, +0.0 µm realized",
         "scale x 1.0050 y 0.9980",
         "1200 × 600 dpi",
         "2025-03-14",
@@ -158,7 +158,7 @@ fn label_lines_say_everything_the_trade_rules_ask_for() {
     let all = label_lines(&plain).join("\n");
     assert!(all.contains("image as drawn, printed side away from board"));
     assert!(all.contains("bottom side") && all.contains("1200 dpi") && !all.contains("copy"));
-    assert!(all.contains("+0.0 µm asked"), "no negative zero: {all}");
+    assert!(all.contains("+0.0 µm requested"), "no negative zero: {all}");
 }
 
 #[test]

@@ -75,4 +75,37 @@ fn preview_font_and_marks() {
         true,
     ));
     write("umbra_marks.png", &film, 300.0);
+
+    let info = marks::LabelInfo {
+        board: "Larkspur plant-sensor rev B".into(),
+        layer: "copper bottom".into(),
+        side: marks::BoardFace::Bottom,
+        polarity: "black = copper".into(),
+        mirrored: false,
+        printed_side_toward_board: true,
+        edge_offset_um_requested: 10.0,
+        edge_offset_um_realized: 0.0,
+        scale_x: 1.005,
+        scale_y: 0.998,
+        dpi_x: 600.0,
+        dpi_y: 600.0,
+        date: "2025-03-14".into(),
+        copy: Some((1, 2)),
+        tile: None,
+    };
+    let lines = marks::label_lines(&info);
+    let mut label = marks::label_shapes(&lines, Point::new(0.0, 0.0), 2.0, false);
+    label.extend(marks::label_shapes(
+        &lines,
+        Point::new(0.0, -26.0),
+        2.0,
+        info.mirrored_in_board(),
+    ));
+    label.extend(marks::side_indicator_shapes(
+        marks::BoardFace::Bottom,
+        Point::new(0.0, -34.0),
+        4.0,
+        true,
+    ));
+    write("umbra_label_600dpi.png", &label, 600.0);
 }

@@ -42,7 +42,7 @@
 //! reads correctly exactly when the board's own text on that film does.
 
 use crate::film::font;
-use crate::image::{Bounds, Point, Shape, Turn};
+use crate::image::{Bounds, Contour, Point, Segment, Shape, Turn};
 use std::fmt::Write as _;
 
 /// Registration target centres never crowd each other: the box they sit on is at least this
@@ -212,16 +212,16 @@ pub fn stack_target_shapes(center: Point, size_mm: f64, line_mm: f64) -> Vec<Sha
     for (sx, sy) in [(1.0, 1.0), (-1.0, -1.0)] {
         let a = Point::new(center.x + sx * r, center.y);
         let b = Point::new(center.x, center.y + sy * r);
-        shapes.push(Shape::Polygon(crate::image::Contour {
+        shapes.push(Shape::Polygon(Contour {
             start: center,
             segments: vec![
-                crate::image::Segment::Line { to: a },
-                crate::image::Segment::Arc {
+                Segment::Line { to: a },
+                Segment::Arc {
                     to: b,
                     center,
                     turn: Turn::CounterClockwise,
                 },
-                crate::image::Segment::Line { to: center },
+                Segment::Line { to: center },
             ],
         }));
     }
@@ -371,7 +371,7 @@ pub fn label_lines(info: &LabelInfo) -> Vec<String> {
     };
     lines.push(format!("image {image}, printed side {place} board"));
     lines.push(format!(
-        "edge offset {} µm asked, {} µm made",
+        "edge offset {} µm requested, {} µm realized",
         signed_um(info.edge_offset_um_requested),
         signed_um(info.edge_offset_um_realized)
     ));

@@ -5,6 +5,7 @@
 
 pub mod diag;
 pub mod excellon;
+pub mod film;
 pub mod gerber;
 pub mod image;
 pub mod limits;

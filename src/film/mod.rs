@@ -1,0 +1,2 @@
+pub mod font;
+pub mod marks;

@@ -7,6 +7,8 @@ pub mod diag;
 pub mod excellon;
 pub mod gerber;
 pub mod image;
+pub mod layers;
 pub mod limits;
 pub mod output;
 pub mod raster;
+pub mod synth;

@@ -373,6 +373,16 @@ fn odd_input_never_panics() {
         let _ = layers::scan_file_attributes(s);
         let _ = layers::identify(s, &BTreeMap::new(), s);
     }
+    // Glued words that split two ways ("soldermask" = "solder" + "mask") must not make the
+    // name parser take exponential time on a long hostile name.
+    let hostile = format!("{}x.gbr", "soldermask".repeat(500));
+    let started = std::time::Instant::now();
+    assert_eq!(layers::from_file_name(&hostile), None);
+    assert!(
+        started.elapsed().as_secs() < 2,
+        "slow on {} bytes",
+        hostile.len()
+    );
     // A long multi-byte content is cut at a character boundary.
     let long = "é".repeat(40_000);
     assert_eq!(layers::from_content(&long), None);

@@ -214,7 +214,14 @@ fn segment(token: &str) -> Option<Vec<&'static str>> {
     segment_glued(token)
 }
 
+/// Longer tokens are never taken apart: glued layer words are short, and the backtracking
+/// below could otherwise take exponential time on hostile names ("soldermask" repeated).
+const MAX_GLUED_TOKEN: usize = 40;
+
 fn segment_glued(token: &str) -> Option<Vec<&'static str>> {
+    if token.len() > MAX_GLUED_TOKEN {
+        return None;
+    }
     if token.is_empty() {
         return Some(Vec::new());
     }

@@ -240,6 +240,8 @@ impl GerberWriter {
     /// Starts a region (`G36`, §4.10); draw its contour with `move_to`/`line_to`/`arc_to`.
     pub fn begin_region(&mut self) {
         self.out.push_str("G36*\n");
+        // Always start the contour with an explicit D02, even at the current point.
+        self.position = None;
     }
 
     /// Ends a region (`G37`).

@@ -23,10 +23,7 @@ impl InputFile {
     /// The last component of the name, without folders or archive prefix.
     pub fn base_name(&self) -> &str {
         let after_zip = self.name.rsplit(':').next().unwrap_or(&self.name);
-        after_zip
-            .rsplit(['/', '\\'])
-            .next()
-            .unwrap_or(after_zip)
+        after_zip.rsplit(['/', '\\']).next().unwrap_or(after_zip)
     }
 }
 
@@ -129,8 +126,13 @@ fn read_zip(
         if f.is_dir() {
             continue;
         }
-        let entry_name = f.name().to_string();
-        if entry_name.starts_with("__MACOSX/") || entry_name.rsplit('/').next().is_some_and(|b| b.starts_with('.')) {
+        let entry_name = f.name().map_err(zip_err)?.to_string();
+        if entry_name.starts_with("__MACOSX/")
+            || entry_name
+                .rsplit('/')
+                .next()
+                .is_some_and(|b| b.starts_with('.'))
+        {
             continue;
         }
         if f.size() > limits.max_file_bytes {
@@ -174,7 +176,9 @@ pub enum Content {
     /// A Gerber X2 job file (JSON).
     Job,
     /// Not fabrication data (licence, readme, report); kept so `inspect` can list it.
-    Other { why: String },
+    Other {
+        why: String,
+    },
 }
 
 /// One input file after reading.
@@ -213,7 +217,9 @@ fn sniff(text: &str) -> Sniffed {
     }
     // Old files may put every parameter after some comments; look further for the
     // signatures of Gerber data: D-code selections and D01/D02/D03 operations.
-    if head.contains("G04") && (head.contains("D02*") || head.contains("D03*") || head.contains("D2*")) {
+    if head.contains("G04")
+        && (head.contains("D02*") || head.contains("D03*") || head.contains("D2*"))
+    {
         return Sniffed::Gerber;
     }
     Sniffed::Other
@@ -239,10 +245,10 @@ pub fn load_board(inputs: &[InputFile], limits: &Limits) -> Result<Board, LoadEr
         let lf = res?;
         if let Content::Job = lf.content {
             let text = String::from_utf8_lossy(&input.bytes);
-            match layers::read_job_file(&text) {
+            match layers::parse_job_file(&text) {
                 Ok(job) => {
                     if board.job_name.is_none() {
-                        board.job_name = job.name.clone();
+                        board.job_name = job.project.clone();
                     }
                     job_ids.extend(job.files);
                 }
@@ -288,9 +294,16 @@ fn load_one(input: &InputFile, limits: &Limits) -> Result<LoadedFile, LoadError>
         Sniffed::Job => lf.content = Content::Job,
         Sniffed::Drill => {
             let d = excellon::read(&text, &input.name, limits)?;
-            lf.id = layers::from_file_name(&base_name)
-                .filter(|id| id.function == layers::LayerFunction::Drill)
-                .or(Some(LayerId::drill(d.plated)));
+            let named = layers::identify(&base_name, &Default::default(), &text)
+                .filter(|id| id.function == layers::LayerFunction::Drill);
+            lf.id = Some(named.unwrap_or_else(|| {
+                LayerId::new(
+                    layers::LayerFunction::Drill,
+                    layers::Side::Both,
+                    layers::IdSource::Content,
+                )
+                .with_plated(d.plated)
+            }));
             lf.content = Content::Drill(Box::new(d));
         }
         Sniffed::Gerber => {

@@ -4,7 +4,7 @@
 //! The tables are the ones in `docs/film-rules.md` (mirroring, polarity, edge offset). Every
 //! decision carries a reason in plain words so the summary can say why.
 
-use crate::layers::{LayerFunction, LayerId, Side};
+use crate::layers::{FilePolarity, LayerFunction, LayerId, Side};
 use serde::{Deserialize, Serialize};
 
 /// What the user's resist does where light falls on it.
@@ -157,9 +157,7 @@ impl Profile {
     pub fn from_toml(text: &str, file: &str) -> Result<Profile, ProfileError> {
         let p: Profile = toml::from_str(text).map_err(|e| ProfileError {
             file: file.to_string(),
-            pos: e
-                .span()
-                .map(|s| crate::diag::Pos::of_offset(text, s.start)),
+            pos: e.span().map(|s| crate::diag::Pos::of_offset(text, s.start)),
             message: e.message().trim().to_string(),
         })?;
         p.validate().map_err(|message| ProfileError {
@@ -187,7 +185,10 @@ impl Profile {
                 ));
             }
         }
-        for (k, v) in [("printer.scale_x", pr.scale_x), ("printer.scale_y", pr.scale_y)] {
+        for (k, v) in [
+            ("printer.scale_x", pr.scale_x),
+            ("printer.scale_y", pr.scale_y),
+        ] {
             if !(v.is_finite() && (0.8..=1.25).contains(&v)) {
                 return Err(format!(
                     "{k} = {v} is outside 0.8 to 1.25; a printer's scale error is a few percent at most"
@@ -196,7 +197,10 @@ impl Profile {
         }
         for (k, v) in [
             ("printer.toner_spread_um", pr.toner_spread_um),
-            ("process.exposure_spread_um", self.process.exposure_spread_um),
+            (
+                "process.exposure_spread_um",
+                self.process.exposure_spread_um,
+            ),
             ("process.undercut_um", self.process.undercut_um),
         ] {
             if !(v.is_finite() && (0.0..=500.0).contains(&v)) {
@@ -259,7 +263,8 @@ pub struct FilmRecipe {
 }
 
 /// What a layer's dark objects stand for, before the film decides black and clear.
-fn dark_is_material(id: &LayerId, file_polarity_negative: Option<bool>) -> bool {
+fn dark_is_material(id: &LayerId) -> bool {
+    let file_polarity_negative = id.polarity.map(|p| p == FilePolarity::Negative);
     match id.function {
         // Mask files show openings (absence of mask) unless they say otherwise
         // (Gerber spec 2024.05 §5.6.3: masks usually `.FilePolarity,Negative`); for the film
@@ -271,20 +276,12 @@ fn dark_is_material(id: &LayerId, file_polarity_negative: Option<bool>) -> bool 
 
 /// Plans one film: the decision tables of docs/film-rules.md.
 ///
-/// `file_polarity_negative` is the file's `.FilePolarity` (Some(true) for Negative),
-/// `image_negative` whether it declared the deprecated `%IPNEG*%`.
-pub fn plan(
-    id: &LayerId,
-    file_polarity_negative: Option<bool>,
-    image_negative: bool,
-    profile: &Profile,
-) -> FilmRecipe {
+/// `id.polarity` is the file's `.FilePolarity`; `image_negative` whether it declared the
+/// deprecated `%IPNEG*%`.
+pub fn plan(id: &LayerId, image_negative: bool, profile: &Profile) -> FilmRecipe {
     let mut reasons = Vec::new();
     let ov = profile.layer_override(id.function);
-    let is_copperlike = matches!(
-        id.function,
-        LayerFunction::Copper | LayerFunction::Paste
-    );
+    let is_copperlike = matches!(id.function, LayerFunction::Copper | LayerFunction::Paste);
 
     // Polarity: where is the film black?
     let black_is_material = match id.function {
@@ -321,7 +318,7 @@ pub fn plan(
         }
         None => black_is_material,
     };
-    let dark_material = dark_is_material(id, file_polarity_negative) != image_negative;
+    let dark_material = dark_is_material(id) != image_negative;
     let black_is_dark = black_is_material == dark_material;
 
     // Mirroring: docs/film-rules.md, "Mirroring".
@@ -363,12 +360,20 @@ pub fn plan(
         profile.process.exposure_spread_um,
         profile.printer.toner_spread_um,
         if s_undercut != 0.0 {
-            format!(" {} undercut {:.1}", if s_undercut > 0.0 { "+" } else { "−" }, profile.process.undercut_um)
+            format!(
+                " {} undercut {:.1}",
+                if s_undercut > 0.0 { "+" } else { "−" },
+                profile.process.undercut_um
+            )
         } else {
             String::new()
         },
         if extra != 0.0 {
-            format!(" {} extra {:.1}", if s_extra > 0.0 { "+" } else { "−" }, extra)
+            format!(
+                " {} extra {:.1}",
+                if s_extra > 0.0 { "+" } else { "−" },
+                extra
+            )
         } else {
             String::new()
         }

@@ -654,8 +654,11 @@ impl<'a> Reader<'a> {
             .or(self.commented.units)
             .or(self.external.units);
         // Plating from notes after the table, tool ranges, then the file function.
+        // (Maps and a sorted list keep this linear-ish for hostile files with many tools.)
+        let notes: HashMap<u32, bool> = self.tool_plating_notes.iter().copied().collect();
         let mut ranges = self.plating_ranges.clone();
         ranges.sort_by_key(|r| r.0);
+        ranges.dedup_by_key(|r| r.0);
         let mut tools = Vec::with_capacity(self.tools.len());
         for t in &self.tools {
             let units = match t.units.or(file_units) {
@@ -667,13 +670,9 @@ impl<'a> Reader<'a> {
                     ))
                 }
             };
-            let note = self
-                .tool_plating_notes
-                .iter()
-                .rev()
-                .find(|n| n.0 == t.number)
-                .map(|n| n.1);
-            let range = ranges.iter().rev().find(|r| r.0 <= t.number).map(|r| r.1);
+            let note = notes.get(&t.number).copied();
+            let below = ranges.partition_point(|r| r.0 <= t.number);
+            let range = below.checked_sub(1).map(|i| ranges[i].1);
             let plated = t.plated.or(note).or(range).or(self.file_plating.flatten());
             tools.push(Tool {
                 number: t.number,

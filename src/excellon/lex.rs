@@ -128,10 +128,9 @@ pub(crate) enum Block<'a> {
         fields: Vec<String>,
     },
     /// `M45,text` / `M47,text` (operator messages) and `M97,text` / `M98,text` (canned text):
-    /// the code and the text after the comma.
+    /// the code (the text after the comma is for the operator, never geometry).
     Message {
         code: u32,
-        offset: usize,
     },
     /// A run of words, optionally followed by a trailing `;` comment.
     Words {
@@ -218,10 +217,7 @@ pub(crate) fn block(line: &str) -> Result<Block<'_>, LexError> {
         if letter == b'M' && bytes.get(i) == Some(&b',') {
             let code = num.as_index().unwrap_or(u64::MAX).min(u32::MAX as u64) as u32;
             if words.len() == 1 {
-                return Ok(Block::Message {
-                    code,
-                    offset: i + 1,
-                });
+                return Ok(Block::Message { code });
             }
             return Err(LexError {
                 offset: i,
@@ -314,10 +310,7 @@ mod tests {
         }
         assert!(matches!(
             block("M47,Hello").unwrap(),
-            Block::Message {
-                code: 47,
-                offset: 4
-            }
+            Block::Message { code: 47 }
         ));
         let e = block("X1.2.3Y4").unwrap_err();
         assert_eq!(e.offset, 0);

@@ -314,9 +314,9 @@ impl Reader<'_> {
         Ok(())
     }
 
-    pub(super) fn end_path(&mut self, pos: Pos) -> R<()> {
+    pub(super) fn end_path(&mut self) {
         if !self.router_down {
-            return Ok(());
+            return;
         }
         self.router_down = false;
         let path = std::mem::take(&mut self.path);
@@ -332,9 +332,7 @@ impl Reader<'_> {
                 tool: self.path_tool,
                 at: p,
             });
-            let _ = pos;
         }
-        Ok(())
     }
 
     pub(super) fn end_path_if_down(&mut self, pos: Pos, why: &str) {
@@ -345,7 +343,7 @@ impl Reader<'_> {
                     "{why} with the router down (no M16/M17 before it); the routed path ends here"
                 ),
             );
-            let _ = self.end_path(pos);
+            self.end_path();
         }
     }
 }

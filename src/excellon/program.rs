@@ -221,7 +221,7 @@ impl<'a> Reader<'a> {
                     }
                 }
                 Block::Keyword { name, fields } => self.keyword(&name, &fields, &line)?,
-                Block::Message { code, offset } => self.message(code, &line, offset)?,
+                Block::Message { code } => self.message(code, &line)?,
                 Block::Words { words, comment } => {
                     self.words(&words, &line)?;
                     if let Some(c) = comment {
@@ -326,8 +326,7 @@ impl<'a> Reader<'a> {
         self.stated.units = Some(units);
     }
 
-    fn message(&mut self, code: u32, line: &Line, offset: usize) -> R<()> {
-        let _ = offset;
+    fn message(&mut self, code: u32, line: &Line) -> R<()> {
         match code {
             45 | 47 => Ok(()),
             97 | 98 => Err(self.err(
@@ -499,14 +498,14 @@ impl<'a> Reader<'a> {
         for (code, pos) in after {
             match code {
                 15 => self.plunge(pos)?,
-                16 | 17 => self.end_path(pos)?,
+                16 | 17 => self.end_path(),
                 _ => {
                     if self.router_down {
                         self.warn(
                             Some(pos),
                             "the program ends with the router down; the routed path is closed here",
                         );
-                        self.end_path(pos)?;
+                        self.end_path();
                     }
                     self.saw_end = true;
                     self.section = Section::Ended;
@@ -631,13 +630,12 @@ impl<'a> Reader<'a> {
     // ---- end -------------------------------------------------------------------------
 
     fn finish(mut self) -> R<DrillFile> {
-        let end_pos = Pos::new(lex::lines(self.text).count().max(1) as u32, 1);
         if self.router_down {
             self.warn(
                 None,
                 "the file ends with the router down; the routed path is closed at its last point",
             );
-            self.end_path(end_pos)?;
+            self.end_path();
         }
         if !self.saw_end {
             self.warn(

@@ -98,3 +98,26 @@ fn every_prefix_of_every_fixture_reads_without_panic() {
     }
     assert!(started.elapsed() < Duration::from_secs(60));
 }
+
+#[test]
+fn one_huge_line_stays_fast_and_warnings_are_capped() {
+    // 300 000 unknown codes on one line: positions must not be recounted from the line
+    // start for each word, and the warning list must not grow without bound.
+    let text = format!(
+        "M48\nMETRIC\nT1C1.0\n%\nT1\n{}X1.0Y1.0 ; ünïcode comment\nM30\n",
+        "G99".repeat(300_000)
+    );
+    let started = Instant::now();
+    let d = excellon::read(&text, "huge.drl", &Limits::default()).unwrap();
+    assert!(started.elapsed() < Duration::from_secs(20));
+    assert_eq!(d.holes.len(), 1);
+    assert!(d.warnings.len() <= 1001, "{}", d.warnings.len());
+    assert!(d.warnings.last().unwrap().message.contains("more warnings"));
+    // An error far along such a line still names the right column.
+    let text = format!(
+        "M48\nMETRIC\nT1C1.0\n%\nT1\n{}X1.0#\nM30\n",
+        "M06".repeat(100_000)
+    );
+    let e = excellon::read(&text, "huge.drl", &Limits::default()).unwrap_err();
+    assert_eq!((e.pos.line, e.pos.column), (6, 300_005));
+}

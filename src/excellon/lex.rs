@@ -12,12 +12,19 @@ use crate::diag::Pos;
 pub(crate) struct Line<'a> {
     pub number: u32,
     pub text: &'a str,
+    /// Byte offset of the first non-ASCII byte (or the length): columns before it are
+    /// byte offsets + 1, so positions cost O(1) on the (all-ASCII) command part of a line
+    /// and a hostile line with millions of words stays linear.
+    pub ascii_prefix: usize,
 }
 
 impl Line<'_> {
     /// The position of byte offset `offset` of this line (columns count characters).
     pub fn pos(&self, offset: usize) -> Pos {
         let offset = offset.min(self.text.len());
+        if offset <= self.ascii_prefix {
+            return Pos::new(self.number, offset as u32 + 1);
+        }
         let column = self
             .text
             .get(..offset)
@@ -51,7 +58,15 @@ pub(crate) fn lines(text: &str) -> impl Iterator<Item = Line<'_>> {
         }
         start = next;
         number = number.saturating_add(1);
-        Some(Line { number, text: line })
+        let ascii_prefix = line
+            .bytes()
+            .position(|b| !b.is_ascii())
+            .unwrap_or(line.len());
+        Some(Line {
+            number,
+            text: line,
+            ascii_prefix,
+        })
     })
 }
 

@@ -84,6 +84,10 @@ const HARMLESS_KEYWORDS: &[&str] = &[
     "RHH", "RPS", "RSB", "SBK", "SG", "SI", "TCST", "UP", "AXIS", "TCSTON", "TCSTOFF", "LZ", "TZ",
 ];
 
+/// Warnings kept per file; a hostile file could otherwise make one per word. The rest are
+/// counted and reported in one closing warning.
+const MAX_WARNINGS: usize = 1000;
+
 pub(crate) struct Reader<'a> {
     pub(super) file: &'a str,
     pub(super) text: &'a str,
@@ -126,6 +130,7 @@ pub(crate) struct Reader<'a> {
     pub(super) file_plating: Option<Option<bool>>,
     pub(super) tool_plating_notes: Vec<(u32, bool)>,
     pub(super) plating_ranges: Vec<(u32, bool)>,
+    pub(super) suppressed_warnings: usize,
 }
 
 pub(super) type R<T> = Result<T, InputError>;
@@ -174,6 +179,7 @@ impl<'a> Reader<'a> {
             file_plating: None,
             tool_plating_notes: Vec::new(),
             plating_ranges: Vec::new(),
+            suppressed_warnings: 0,
         }
     }
 
@@ -182,7 +188,11 @@ impl<'a> Reader<'a> {
     }
 
     pub(super) fn warn(&mut self, pos: Option<Pos>, message: impl Into<String>) {
-        self.warnings.push(Warning::new(self.file, pos, message));
+        if self.warnings.len() < MAX_WARNINGS {
+            self.warnings.push(Warning::new(self.file, pos, message));
+        } else {
+            self.suppressed_warnings += 1;
+        }
     }
 
     /// Warns once per `key` for the whole file (repeated harmless oddities).
@@ -706,6 +716,14 @@ impl<'a> Reader<'a> {
                     bounds.height()
                 ),
             );
+        }
+        if self.suppressed_warnings > 0 {
+            let n = self.suppressed_warnings;
+            self.warnings.push(Warning::new(
+                self.file,
+                None,
+                format!("{n} more warnings were not listed"),
+            ));
         }
         Ok(DrillFile {
             tools,

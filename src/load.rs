@@ -239,8 +239,31 @@ pub fn load_board(inputs: &[InputFile], limits: &Limits) -> Result<Board, LoadEr
     let mut job_ids: Vec<(String, LayerId)> = Vec::new();
     // Parse in parallel: files are independent.
     use rayon::prelude::*;
-    let parsed: Vec<Result<LoadedFile, LoadError>> =
-        inputs.par_iter().map(|f| load_one(f, limits)).collect();
+    // Drill-format information files (e.g. an Allegro `nc_param.txt`, an EAGLE `.dri`) tell
+    // how to read drill files that state no format; they apply to drill files beside them.
+    let hints: Vec<(&str, excellon::FormatHint)> = inputs
+        .iter()
+        .filter(|f| !f.bytes.contains(&0))
+        .filter_map(|f| {
+            let text = String::from_utf8_lossy(&f.bytes);
+            match sniff(&text) {
+                Sniffed::Other => {
+                    excellon::FormatHint::from_info_file(&text).map(|h| (folder_of(&f.name), h))
+                }
+                _ => None,
+            }
+        })
+        .collect();
+    let parsed: Vec<Result<LoadedFile, LoadError>> = inputs
+        .par_iter()
+        .map(|f| {
+            let hint = hints
+                .iter()
+                .find(|(folder, _)| *folder == folder_of(&f.name))
+                .map(|(_, h)| h);
+            load_one(f, hint, limits)
+        })
+        .collect();
     for (res, input) in parsed.into_iter().zip(inputs) {
         let lf = res?;
         if let Content::Job = lf.content {
@@ -272,7 +295,16 @@ pub fn load_board(inputs: &[InputFile], limits: &Limits) -> Result<Board, LoadEr
     Ok(board)
 }
 
-fn load_one(input: &InputFile, limits: &Limits) -> Result<LoadedFile, LoadError> {
+/// The folder part of an input's name (what precedes the last separator).
+fn folder_of(name: &str) -> &str {
+    name.rfind(['/', '\\']).map(|i| &name[..i]).unwrap_or("")
+}
+
+fn load_one(
+    input: &InputFile,
+    hint: Option<&excellon::FormatHint>,
+    limits: &Limits,
+) -> Result<LoadedFile, LoadError> {
     let text = String::from_utf8_lossy(&input.bytes);
     let base_name = input.base_name().to_string();
     let mut lf = LoadedFile {
@@ -293,7 +325,10 @@ fn load_one(input: &InputFile, limits: &Limits) -> Result<LoadedFile, LoadError>
     match sniff(&text) {
         Sniffed::Job => lf.content = Content::Job,
         Sniffed::Drill => {
-            let d = excellon::read(&text, &input.name, limits)?;
+            let d = match hint {
+                Some(h) => excellon::read_with_format_hint(&text, &input.name, limits, h)?,
+                None => excellon::read(&text, &input.name, limits)?,
+            };
             let named = layers::identify(&base_name, &Default::default(), &text)
                 .filter(|id| id.function == layers::LayerFunction::Drill);
             lf.id = Some(named.unwrap_or_else(|| {

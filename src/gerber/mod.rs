@@ -36,5 +36,9 @@ pub struct GerberFile {
 /// Reads Gerber text. `file` names the file in messages.
 pub fn read(text: &str, file: &str, limits: &Limits) -> Result<GerberFile, InputError> {
     let _ = (text, limits);
-    Err(InputError::new(file, crate::diag::Pos::new(1, 1), "the Gerber reader is not written yet"))
+    Err(InputError::new(
+        file,
+        crate::diag::Pos::new(1, 1),
+        "the Gerber reader is not written yet",
+    ))
 }

@@ -15,7 +15,8 @@ use crate::raster::Bitmap;
 use miniz_oxide::deflate::core::{
     compress, create_comp_flags_from_zip_params, CompressorOxide, TDEFLFlush, TDEFLStatus,
 };
-use pdf_writer::{Content, Filter, Finish, Name, Pdf, Rect, Ref};
+use pdf_writer::{Filter, Finish, Name, Pdf, Rect, Ref};
+use std::fmt::Write as _;
 use std::io::Write;
 use std::path::Path;
 
@@ -163,7 +164,7 @@ pub fn pdf_bytes(pages: &[PdfPage<'_>]) -> Result<Vec<u8>, String> {
         let content_id = next();
         page_ids.push(page_id);
 
-        let mut content = Content::new();
+        let mut content = String::new();
         let mut image_refs = Vec::new();
         for (ii, img) in page.images.iter().enumerate() {
             let (bw, bh) = (img.bitmap.width(), img.bitmap.height());
@@ -188,49 +189,49 @@ pub fn pdf_bytes(pages: &[PdfPage<'_>]) -> Result<Vec<u8>, String> {
             x.bits_per_component(1);
             x.interpolate(false);
             x.finish();
-            content.save_state();
             // Maps the unit square onto the placement rectangle (ISO 32000-1 §8.9.4).
-            content.transform([
-                img.width_pt as f32,
-                0.0,
-                0.0,
-                img.height_pt as f32,
-                img.x_pt as f32,
-                img.y_pt as f32,
-            ]);
-            content.x_object(Name(name.as_bytes()));
-            content.restore_state();
+            let _ = writeln!(
+                content,
+                "q {} 0 0 {} {} {} cm /{name} Do Q",
+                num(img.width_pt),
+                num(img.height_pt),
+                num(img.x_pt),
+                num(img.y_pt)
+            );
             image_refs.push((name, id));
         }
         if !page.art.is_empty() {
-            content.save_state();
-            content.set_fill_gray(0.0);
-            content.set_stroke_gray(0.0);
+            // Black fill and stroke (DeviceGray 0), ISO 32000-1 §8.6.8 operators g and G.
+            content.push_str("q 0 g 0 G\n");
             for art in &page.art {
                 match art {
                     LineArt::Fill(points) => {
                         let mut it = points.iter();
                         if let Some(&(x, y)) = it.next() {
-                            content.move_to(x as f32, y as f32);
+                            let _ = write!(content, "{} {} m", num(x), num(y));
                             for &(x, y) in it {
-                                content.line_to(x as f32, y as f32);
+                                let _ = write!(content, " {} {} l", num(x), num(y));
                             }
-                            content.close_path();
-                            content.fill_nonzero();
+                            // Close and fill with the non-zero rule (§8.5.3.3.2).
+                            content.push_str(" h f\n");
                         }
                     }
                     LineArt::Line { from, to, width_pt } => {
-                        content.set_line_width(*width_pt as f32);
-                        content.move_to(from.0 as f32, from.1 as f32);
-                        content.line_to(to.0 as f32, to.1 as f32);
-                        content.stroke();
+                        let _ = writeln!(
+                            content,
+                            "{} w {} {} m {} {} l S",
+                            num(*width_pt),
+                            num(from.0),
+                            num(from.1),
+                            num(to.0),
+                            num(to.1)
+                        );
                     }
                 }
             }
-            content.restore_state();
+            content.push_str("Q\n");
         }
-        let content_bytes = content.finish();
-        let packed = miniz_oxide::deflate::compress_to_vec_zlib(content_bytes.as_slice(), 6);
+        let packed = miniz_oxide::deflate::compress_to_vec_zlib(content.as_bytes(), 6);
         pdf.stream(content_id, &packed).filter(Filter::FlateDecode);
 
         let mut p = pdf.page(page_id);
@@ -257,6 +258,23 @@ pub fn pdf_bytes(pages: &[PdfPage<'_>]) -> Result<Vec<u8>, String> {
         .pair(Name(b"PrintScaling"), Name(b"None"));
     catalog.finish();
     Ok(pdf.finish())
+}
+
+/// A PDF real (ISO 32000-1 §7.3.3: no exponent) with up to 6 decimals, from the f64 value,
+/// so placements are exact to 1e-6 pt (pdf-writer's own operators take f32, whose rounding
+/// makes an image of 301 pixels at 300 dpi 300.99998 device pixels wide, and viewers then
+/// drop or repeat pixel columns). Non-finite values are written as 0.
+fn num(v: f64) -> String {
+    if !v.is_finite() {
+        return "0".into();
+    }
+    let s = format!("{v:.6}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" || s.is_empty() {
+        "0".into()
+    } else {
+        s.to_string()
+    }
 }
 
 /// The bitmap's rows, packed MSB-first with 0 = black (DeviceGray), zlib-compressed row by

@@ -55,8 +55,14 @@ fn one_bit_png_with_phys_reads_back() {
     // With black_is_one = false the set bits are written white.
     write_png(&path, &bmp, 300.0, 300.0, false).unwrap();
     let (info, _, data) = decode(&path);
-    let byte = data[info.line_size * 5 + 5 / 8];
-    assert_eq!((byte >> (7 - 5 % 8)) & 1 == 1, bmp.get(5, 5));
+    for (y, x) in [(5usize, 5usize), (0, 0), (56, 202), (13, 100)] {
+        let byte = data[info.line_size * y + x / 8];
+        assert_eq!(
+            (byte >> (7 - x % 8)) & 1 == 1,
+            bmp.get(x, y),
+            "pixel ({x},{y})"
+        );
+    }
     // Nothing but the output is left in the folder (the temporary file was renamed).
     assert_eq!(fs::read_dir(dir.path()).unwrap().count(), 1);
 }

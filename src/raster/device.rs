@@ -227,11 +227,6 @@ impl DeviceMap {
         )
     }
 
-    /// Board y (mm) of the centre of pixel row `j`.
-    pub(crate) fn row_center_y(&self, j: usize) -> f64 {
-        self.origin.y + (self.height as f64 - (j as f64 + 0.5)) / self.px_per_mm_y()
-    }
-
     /// Rows whose centres may lie in board `y_min ..= y_max`, conservatively widened by one
     /// row each way (exact membership is decided per row in mm). `None` when no row can.
     pub(crate) fn rows_touching(&self, y_min: f64, y_max: f64) -> Option<(usize, usize)> {
@@ -239,7 +234,9 @@ impl DeviceMap {
         let h = self.height as f64;
         let top = (h - 0.5 - (y_max - self.origin.y) * sy).floor() - 1.0;
         let bottom = (h - 0.5 - (y_min - self.origin.y) * sy).ceil() + 1.0;
-        if !(top <= bottom) || bottom < 0.0 || top >= h {
+        // NaN bounds fail `top <= bottom` and give None.
+        let valid = top <= bottom;
+        if !valid || bottom < 0.0 || top >= h {
             return None;
         }
         let first = top.max(0.0) as usize;
@@ -247,25 +244,64 @@ impl DeviceMap {
         Some((first, last + 1))
     }
 
+    /// Unmirrored pixel columns whose centres lie in board `x_lo <= x < x_hi`.
+    pub(crate) fn columns(&self, x_lo: f64, x_hi: f64) -> (usize, usize) {
+        self.grid().columns(x_lo, x_hi)
+    }
+
+    /// The per-row constants of the map, precomputed for the scan loops.
+    pub(crate) fn grid(&self) -> Grid {
+        Grid {
+            origin_x: self.origin.x,
+            origin_y: self.origin.y,
+            px_per_mm_x: self.px_per_mm_x(),
+            mm_per_px_y: 1.0 / self.px_per_mm_y(),
+            width: self.width,
+            height: self.height,
+        }
+    }
+}
+
+/// The unmirrored pixel grid of a map with its constants precomputed: what the scan loops
+/// need per row, without divisions.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Grid {
+    origin_x: f64,
+    origin_y: f64,
+    px_per_mm_x: f64,
+    mm_per_px_y: f64,
+    width: usize,
+    height: usize,
+}
+
+impl Grid {
+    /// Board y (mm) of the centre of pixel row `j`.
+    #[inline]
+    pub(crate) fn row_center_y(&self, j: usize) -> f64 {
+        self.origin_y + (self.height as f64 - (j as f64 + 0.5)) * self.mm_per_px_y
+    }
+
     /// Unmirrored pixel columns whose centres lie in board `x_lo <= x < x_hi`, clipped to
     /// the film. Pixel i's centre is at `origin.x + (i + 0.5)/sx`, so i is in when
     /// `ceil(u_lo − 0.5) <= i < ceil(u_hi − 0.5)` with `u = (x − origin.x)·sx`.
     #[inline]
     pub(crate) fn columns(&self, x_lo: f64, x_hi: f64) -> (usize, usize) {
-        let sx = self.px_per_mm_x();
-        let w = self.width as f64;
-        let clip = |x: f64| -> usize {
-            let v = ((x - self.origin.x) * sx - 0.5).ceil();
-            // NaN fails both tests and casts to 0: an empty span, never a panic.
-            if v <= 0.0 {
-                0
-            } else if v >= w {
-                self.width
-            } else {
-                v as usize
-            }
-        };
-        (clip(x_lo), clip(x_hi))
+        (self.column(x_lo), self.column(x_hi))
+    }
+
+    #[inline]
+    fn column(&self, x: f64) -> usize {
+        let v = (x - self.origin_x) * self.px_per_mm_x - 0.5;
+        // NaN lands on 0 (an empty span), never a panic.
+        if v.is_nan() || v <= 0.0 {
+            0
+        } else if v >= self.width as f64 {
+            self.width
+        } else {
+            // ceil for 0 < v < width, without a libm call.
+            let t = v as usize;
+            t + ((t as f64) < v) as usize
+        }
     }
 }
 

@@ -60,7 +60,8 @@ impl DiscKernel {
     /// The disc of `radius_um`, limited to `max_x` × `max_y` pixels each way (a larger disc
     /// acts the same on a bitmap of that size). Non-positive or NaN radii give an empty disc.
     pub fn new(radius_um: f64, pitch: Pitch, max_x: usize, max_y: usize) -> DiscKernel {
-        if !(radius_um > 0.0) || !(pitch.x_um > 0.0) || !(pitch.y_um > 0.0) {
+        let positive = |v: f64| v > 0.0; // false for NaN
+        if !positive(radius_um) || !positive(pitch.x_um) || !positive(pitch.y_um) {
             return DiscKernel {
                 half_widths: Vec::new(),
             };
@@ -87,7 +88,7 @@ impl DiscKernel {
 
     /// Whether the disc is the single centre pixel (or empty): the operation is a no-op.
     pub fn is_trivial(&self) -> bool {
-        self.half_widths.len() <= 1 && self.half_widths.first().is_none_or(|&k| k == 0)
+        self.half_widths.len() <= 1 && self.half_widths.first().copied().unwrap_or(0) == 0
     }
 
     /// Whether offset (i, j) is in the disc.

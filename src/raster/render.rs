@@ -137,11 +137,12 @@ fn paint_band(
     let end_row = first_row + rows_here;
     let mut scratch = Scratch::default();
     let mut spans: Vec<Span> = Vec::new();
+    let grid = map.grid();
     for &i in list {
         let p = &prepared[i as usize];
         for row in p.rows.0.max(first_row)..p.rows.1.min(end_row) {
-            let y = map.row_center_y(row);
-            shapes::node_spans(&p.node, map, row, y, &mut scratch, &mut spans);
+            let y = grid.row_center_y(row);
+            shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
             let words = &mut chunk[(row - first_row) * wpr..(row - first_row + 1) * wpr];
             for &(x0, x1) in &spans {
                 // Mirroring maps unmirrored column i to width − 1 − i, so span [x0, x1)

@@ -7,7 +7,7 @@
 //! rule. The answer is a list of pixel spans of the *unmirrored* film (mirroring is applied
 //! when painting).
 
-use super::device::DeviceMap;
+use super::device::{DeviceMap, Grid};
 use super::spans::{self, Span};
 use crate::image::{arc_sweep, Point, Segment, Shape};
 
@@ -113,7 +113,7 @@ pub(crate) fn shape_is_finite(shape: &Shape) -> bool {
             end,
             arc,
             width,
-        } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
+        } => pf(start) && pf(end) && width.is_finite() && arc.map_or(true, |(c, _)| pf(&c)),
         Shape::Polygon(c) => {
             pf(&c.start)
                 && c.segments.iter().all(|s| match s {
@@ -481,7 +481,7 @@ fn polygon_row(
 /// The pixel spans (unmirrored columns, normalized) of `node` on row `row`.
 pub(crate) fn node_spans(
     node: &Node,
-    map: &DeviceMap,
+    grid: &Grid,
     row: usize,
     y: f64,
     scratch: &mut Scratch,
@@ -494,7 +494,7 @@ pub(crate) fn node_spans(
             mm.clear();
             p.row_intervals(y, &mut mm, &mut scratch.crossings, row);
             for &(lo, hi) in &mm {
-                let (x0, x1) = map.columns(lo, hi);
+                let (x0, x1) = grid.columns(lo, hi);
                 if x0 < x1 {
                     out.push((x0, x1));
                 }
@@ -508,7 +508,7 @@ pub(crate) fn node_spans(
             let mut part = scratch.take();
             let mut tmp = scratch.take();
             for (add, n) in parts {
-                node_spans(n, map, row, y, scratch, &mut part);
+                node_spans(n, grid, row, y, scratch, &mut part);
                 if *add {
                     spans::union(out, &part, &mut tmp);
                 } else {

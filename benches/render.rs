@@ -8,7 +8,7 @@ use std::time::Instant;
 use umbra::image::{Contour, LayerImage, Object, Point, Polarity, Shape, Turn};
 use umbra::output::png::write_png;
 use umbra::raster::morphology::{offset, Pitch};
-use umbra::raster::{render, DeviceMap};
+use umbra::raster::{render, render_with, DeviceMap, RenderOptions};
 
 /// Linear congruential generator (Numerical Recipes constants): deterministic across runs.
 struct Lcg(u64);
@@ -151,6 +151,10 @@ fn main() {
         film.height(),
         100.0 * film.count_ones() as f64 / (film.width() * film.height()) as f64
     );
+    let (ms_serial, _) = best_ms(3, || {
+        render_with(&img.objects, &map1200, &RenderOptions::serial())
+    });
+    println!("render 1200 dpi, one thread: {ms_serial:.1} ms");
     let png = dir.join("bench.png");
     let (ms_png, _) = best_ms(3, || {
         write_png(&png, &film, 1200.0, 1200.0, true).expect("png")

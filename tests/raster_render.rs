@@ -557,6 +557,25 @@ fn degenerate_input_paints_nothing_and_never_panics() {
         assert_eq!(got, *want, "wild object {i}");
     }
     let wild: Vec<Object> = wild.into_iter().map(|(o, _)| o).collect();
+    // Nonsense resolutions and band sizes neither panic nor loop.
+    for dpi in [0.0, -600.0, f64::NAN, f64::INFINITY] {
+        let odd = DeviceMap::new(Point::new(0.0, 0.0), 50, 40, dpi, 600.0);
+        let _ = render(&objs_for_odd_maps(), &odd);
+        let odd = DeviceMap::new(Point::new(0.0, 0.0), 50, 40, 600.0, dpi);
+        let _ = render(&objs_for_odd_maps(), &odd);
+    }
+    let huge_bands = RenderOptions {
+        band_rows: usize::MAX,
+        parallel: true,
+    };
+    assert_eq!(
+        render_with(&objs_for_odd_maps(), &map, &huge_bands),
+        render(&objs_for_odd_maps(), &map)
+    );
     let empty = DeviceMap::new(Point::new(0.0, 0.0), 0, 0, 600.0, 600.0);
     assert_eq!(render(&wild, &empty).width(), 0);
+}
+
+fn objs_for_odd_maps() -> Vec<Object> {
+    random_objects(30, 3)
 }

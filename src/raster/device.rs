@@ -108,6 +108,18 @@ impl From<DeviceMapRecord> for DeviceMap {
     }
 }
 
+/// A film larger than the configured pixel limit.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error(
+    "the film would be {width} × {height} pixels, more than the limit of {limit} pixels; \
+     use a lower resolution or a smaller film, or raise max_film_pixels"
+)]
+pub struct FilmTooLarge {
+    pub width: usize,
+    pub height: usize,
+    pub limit: u64,
+}
+
 /// Millimetres per inch (exact by definition of the inch).
 pub const MM_PER_INCH: f64 = 25.4;
 
@@ -227,6 +239,21 @@ impl DeviceMap {
         )
     }
 
+    /// Checks the film against `Limits::max_film_pixels` before anything is allocated.
+    pub fn check_size(&self, limits: &crate::limits::Limits) -> Result<(), FilmTooLarge> {
+        let pixels = self.width as u128 * self.height as u128;
+        // Rows are stored as whole u64 words; the word count must also fit in memory.
+        let words = (self.width as u128).div_ceil(64) * self.height as u128;
+        if pixels > limits.max_film_pixels as u128 || words > (isize::MAX as u128) / 8 {
+            return Err(FilmTooLarge {
+                width: self.width,
+                height: self.height,
+                limit: limits.max_film_pixels,
+            });
+        }
+        Ok(())
+    }
+
     /// Rows whose centres may lie in board `y_min ..= y_max`, conservatively widened by one
     /// row each way (exact membership is decided per row in mm). `None` when no row can.
     pub(crate) fn rows_touching(&self, y_min: f64, y_max: f64) -> Option<(usize, usize)> {
@@ -332,6 +359,21 @@ mod tests {
             assert_eq!(py, 300.0);
             assert_eq!(px, if mirror { 500.0 } else { 0.0 });
         }
+    }
+
+    #[test]
+    fn size_check_uses_the_pixel_limit() {
+        let limits = crate::limits::Limits {
+            max_film_pixels: 1000,
+            ..Default::default()
+        };
+        assert!(DeviceMap::new(Point::default(), 10, 100, 600.0, 600.0)
+            .check_size(&limits)
+            .is_ok());
+        let e = DeviceMap::new(Point::default(), 11, 100, 600.0, 600.0)
+            .check_size(&limits)
+            .unwrap_err();
+        assert!(e.to_string().contains("11 × 100"), "{e}");
     }
 
     #[test]

@@ -16,5 +16,5 @@ pub(crate) mod shift;
 mod spans;
 
 pub use bitmap::Bitmap;
-pub use device::{Affine, DeviceMap, MM_PER_INCH};
+pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
 pub use render::{render, render_with, RenderOptions};

@@ -217,7 +217,7 @@ pub fn dilate_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderO
     let groups = kernel_groups(&disc);
     let mut out = Bitmap::new(w, h);
     let wpr = out.words_per_row();
-    let band_rows = opts.band_rows.max(1);
+    let band_rows = opts.band_rows.clamp(1, h);
     let band = |(b, chunk): (usize, &mut [u64])| {
         dilate_band(bitmap, &groups, b * band_rows, chunk, wpr);
     };

@@ -67,7 +67,8 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
     if map.width == 0 || map.height == 0 {
         return bitmap;
     }
-    let band_rows = opts.band_rows.max(1);
+    // At least one row, at most the film (also keeps `words_per_row × band_rows` small).
+    let band_rows = opts.band_rows.clamp(1, map.height);
     let prepare_one = |o: &Object| prepare_object(o, map);
     let prepared: Vec<Prepared> = if opts.parallel {
         objects.par_iter().filter_map(prepare_one).collect()

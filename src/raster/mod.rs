@@ -1,2 +1,20 @@
 //! Band rasterizer of the normalized layer image into 1-bit device bitmaps, and exact
-//! Euclidean morphology (edge offset).
+//! Euclidean morphology (edge offset). See `docs/rendering.md`.
+//!
+//! - [`Bitmap`]: 1 bit per pixel, rows of `u64` words, MSB-first.
+//! - [`DeviceMap`]: board mm → device pixels of one film (separate x and y resolution,
+//!   mirror, stretch correction), serializable as an explicit affine.
+//! - [`render`]: objects in order → bitmap, by pixel centres, in parallel bands.
+//! - [`morphology`]: grow/shrink the composed film by a disc, opening and closing.
+
+mod bitmap;
+mod device;
+pub mod morphology;
+mod render;
+mod shapes;
+pub(crate) mod shift;
+mod spans;
+
+pub use bitmap::Bitmap;
+pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
+pub use render::{render, render_with, RenderOptions};

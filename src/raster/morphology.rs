@@ -1,0 +1,317 @@
+//! Edge offset of a composed film by exact Euclidean morphology.
+//!
+//! Growing the black of a film by a radius `r` is a dilation by the disc of radius `r`;
+//! shrinking is an erosion, computed as complement → dilate → complement. The disc is the set
+//! of pixel offsets `(i, j)` with `(i·px)² + (j·py)² <= r²` for the film's own x and y pitch
+//! (`px`, `py` in µm), so non-square pixels get a true circle, not a pixel-count square.
+//!
+//! # Why `<=`
+//! The disc is closed, as is the set of points within distance `r` of a shape. With `<=` a
+//! radius of exactly n pixels reaches n pixels along each axis, so the realized offset is
+//! `floor(r / px)·px` along x and `floor(r / py)·py` along y ([`realized_offset`]). The test
+//! carries a relative tolerance of 1e-9 so that a radius meant as a whole number of pixels
+//! (e.g. `2 × 25400/1200` µm) is not lost to rounding in its last bit.
+//!
+//! # Borders
+//! Outside the bitmap counts as clear for a dilation (nothing grows in from beyond the film)
+//! and, by the complement, as dark for an erosion (black touching the film's edge is not eaten
+//! from the edge). Both leave the film's border as neutral as possible.
+//!
+//! # Method
+//! Per output row: for each vertical offset `j` the disc is a horizontal run of half-width
+//! `k(j)`. Input rows sharing the same `k` are OR-ed first and then dilated horizontally once
+//! (dilation distributes over union), with word-level shifts in O(log k) passes. Output bands
+//! are computed in parallel; each reads the input rows it needs (its band grown by the
+//! radius), so parallel and serial results are identical.
+
+use super::bitmap::{last_word_mask, Bitmap};
+use super::render::RenderOptions;
+use super::shift::dilate_row;
+use rayon::prelude::*;
+
+/// Pixel pitch of a film in µm along x and y.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Pitch {
+    pub x_um: f64,
+    pub y_um: f64,
+}
+
+impl Pitch {
+    /// The pitch of a device with the given resolution (1 in = 25,400 µm).
+    pub fn from_dpi(dpi_x: f64, dpi_y: f64) -> Pitch {
+        Pitch {
+            x_um: 25_400.0 / dpi_x,
+            y_um: 25_400.0 / dpi_y,
+        }
+    }
+}
+
+/// Relative slack of the disc test (see the module docs).
+const DISC_SLACK: f64 = 1e-9;
+
+/// The discrete disc as half-widths: `half_widths[j]` is the largest `i` with
+/// `(i·px)² + (j·py)² <= r²`, for `j = 0 ..= ky`. Empty when the radius is not positive.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DiscKernel {
+    pub half_widths: Vec<usize>,
+}
+
+impl DiscKernel {
+    /// The disc of `radius_um`, limited to `max_x` × `max_y` pixels each way (a larger disc
+    /// acts the same on a bitmap of that size). Non-positive or NaN radii give an empty disc.
+    pub fn new(radius_um: f64, pitch: Pitch, max_x: usize, max_y: usize) -> DiscKernel {
+        let positive = |v: f64| v > 0.0; // false for NaN
+        if !positive(radius_um) || !positive(pitch.x_um) || !positive(pitch.y_um) {
+            return DiscKernel {
+                half_widths: Vec::new(),
+            };
+        }
+        let r2 = radius_um * radius_um * (1.0 + DISC_SLACK);
+        let inside = |i: usize, j: usize| {
+            let (a, b) = (i as f64 * pitch.x_um, j as f64 * pitch.y_um);
+            a * a + b * b <= r2
+        };
+        let ky = largest(radius_um / pitch.y_um, max_y, |j| inside(0, j));
+        let half_widths = (0..=ky)
+            .map(|j| {
+                let rest = (r2 - (j as f64 * pitch.y_um).powi(2)).max(0.0).sqrt();
+                largest(rest / pitch.x_um, max_x, |i| inside(i, j))
+            })
+            .collect();
+        DiscKernel { half_widths }
+    }
+
+    /// Half-height in rows (ky); `None` for an empty disc.
+    pub fn half_height(&self) -> Option<usize> {
+        self.half_widths.len().checked_sub(1)
+    }
+
+    /// Whether the disc is the single centre pixel (or empty): the operation is a no-op.
+    pub fn is_trivial(&self) -> bool {
+        self.half_widths.len() <= 1 && self.half_widths.first().copied().unwrap_or(0) == 0
+    }
+
+    /// Whether offset (i, j) is in the disc.
+    pub fn contains(&self, i: i64, j: i64) -> bool {
+        self.half_widths
+            .get(j.unsigned_abs() as usize)
+            .is_some_and(|&k| i.unsigned_abs() as usize <= k)
+    }
+}
+
+/// The largest n in 0..=cap with `ok(n)`, starting from the estimate `est` (ok is monotone
+/// decreasing, ok(0) assumed true).
+fn largest(est: f64, cap: usize, ok: impl Fn(usize) -> bool) -> usize {
+    let mut n = if est.is_finite() && est > 0.0 {
+        (est.floor() as usize).min(cap)
+    } else {
+        0
+    };
+    while n > 0 && !ok(n) {
+        n -= 1;
+    }
+    while n < cap && ok(n + 1) {
+        n += 1;
+    }
+    n
+}
+
+/// What an offset request becomes on the pixel grid.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct RealizedOffset {
+    /// The request, µm (positive grows black).
+    pub requested_um: f64,
+    /// Whole pixels the film's edges actually move along x and y (signed like the request).
+    pub x_px: i64,
+    pub y_px: i64,
+    /// The same in µm: `x_px · pitch.x_um`, `y_px · pitch.y_um`.
+    pub x_um: f64,
+    pub y_um: f64,
+}
+
+/// The offset the discrete disc achieves along x and y for a request of `offset_um`
+/// (`floor(|r| / pitch)` pixels, signed like the request). See the module docs.
+pub fn realized_offset(offset_um: f64, pitch: Pitch) -> RealizedOffset {
+    let disc = DiscKernel::new(offset_um.abs(), pitch, usize::MAX / 2, usize::MAX / 2);
+    let sign = if offset_um < 0.0 { -1 } else { 1 };
+    let x_px = disc.half_widths.first().copied().unwrap_or(0) as i64 * sign;
+    let y_px = disc.half_height().unwrap_or(0) as i64 * sign;
+    RealizedOffset {
+        requested_um: offset_um,
+        x_px,
+        y_px,
+        x_um: x_px as f64 * pitch.x_um,
+        y_um: y_px as f64 * pitch.y_um,
+    }
+}
+
+/// Whether a request of `offset_um` moves no edge at all (it is shorter than both pitches).
+pub fn rounds_to_zero(offset_um: f64, pitch: Pitch) -> bool {
+    let r = realized_offset(offset_um, pitch);
+    r.x_px == 0 && r.y_px == 0
+}
+
+/// Grows (positive) or shrinks (negative) the black of `bitmap` by `offset_um`.
+pub fn offset(bitmap: &Bitmap, offset_um: f64, pitch: Pitch) -> Bitmap {
+    offset_with(bitmap, offset_um, pitch, &RenderOptions::default())
+}
+
+/// [`offset`] with explicit bands and threading.
+pub fn offset_with(bitmap: &Bitmap, offset_um: f64, pitch: Pitch, opts: &RenderOptions) -> Bitmap {
+    if offset_um < 0.0 {
+        erode_with(bitmap, -offset_um, pitch, opts)
+    } else {
+        dilate_with(bitmap, offset_um, pitch, opts)
+    }
+}
+
+/// Dilation by the disc of `radius_um`: a pixel is set when any set pixel lies within the
+/// disc around it.
+pub fn dilate(bitmap: &Bitmap, radius_um: f64, pitch: Pitch) -> Bitmap {
+    dilate_with(bitmap, radius_um, pitch, &RenderOptions::default())
+}
+
+/// Erosion by the disc of `radius_um`: complement, dilate, complement.
+pub fn erode(bitmap: &Bitmap, radius_um: f64, pitch: Pitch) -> Bitmap {
+    erode_with(bitmap, radius_um, pitch, &RenderOptions::default())
+}
+
+/// Opening (erode then dilate): removes black features narrower than the disc.
+pub fn opening(bitmap: &Bitmap, radius_um: f64, pitch: Pitch) -> Bitmap {
+    let o = RenderOptions::default();
+    dilate_with(
+        &erode_with(bitmap, radius_um, pitch, &o),
+        radius_um,
+        pitch,
+        &o,
+    )
+}
+
+/// Closing (dilate then erode): fills clear gaps narrower than the disc.
+pub fn closing(bitmap: &Bitmap, radius_um: f64, pitch: Pitch) -> Bitmap {
+    let o = RenderOptions::default();
+    erode_with(
+        &dilate_with(bitmap, radius_um, pitch, &o),
+        radius_um,
+        pitch,
+        &o,
+    )
+}
+
+/// [`erode`] with explicit bands and threading.
+pub fn erode_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderOptions) -> Bitmap {
+    let mut inverse = bitmap.clone();
+    inverse.invert();
+    let mut out = dilate_with(&inverse, radius_um, pitch, opts);
+    out.invert();
+    out
+}
+
+/// [`dilate`] with explicit bands and threading.
+pub fn dilate_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderOptions) -> Bitmap {
+    let (w, h) = (bitmap.width(), bitmap.height());
+    let disc = DiscKernel::new(radius_um, pitch, w, h);
+    if disc.is_trivial() || w == 0 || h == 0 {
+        return bitmap.clone();
+    }
+    let groups = kernel_groups(&disc);
+    let mut out = Bitmap::new(w, h);
+    let wpr = out.words_per_row();
+    let band_rows = opts.band_rows.clamp(1, h);
+    let band = |(b, chunk): (usize, &mut [u64])| {
+        dilate_band(bitmap, &groups, b * band_rows, chunk, wpr);
+    };
+    let words = out.words_mut();
+    if opts.parallel {
+        words
+            .par_chunks_mut(wpr * band_rows)
+            .enumerate()
+            .for_each(band);
+    } else {
+        words.chunks_mut(wpr * band_rows).enumerate().for_each(band);
+    }
+    out
+}
+
+/// Runs of vertical offsets with the same half-width: `(j_first, j_last, k)`.
+fn kernel_groups(disc: &DiscKernel) -> Vec<(usize, usize, usize)> {
+    let mut groups: Vec<(usize, usize, usize)> = Vec::new();
+    for (j, &k) in disc.half_widths.iter().enumerate() {
+        match groups.last_mut() {
+            Some(g) if g.2 == k => g.1 = j,
+            _ => groups.push((j, j, k)),
+        }
+    }
+    groups
+}
+
+fn dilate_band(
+    input: &Bitmap,
+    groups: &[(usize, usize, usize)],
+    first_row: usize,
+    chunk: &mut [u64],
+    wpr: usize,
+) {
+    let h = input.height();
+    let mask = last_word_mask(input.width());
+    let mut acc = vec![0u64; wpr];
+    let mut scratch = vec![0u64; wpr];
+    for (r, out_row) in chunk.chunks_mut(wpr).enumerate() {
+        let y = first_row + r;
+        for &(j0, j1, k) in groups {
+            acc.fill(0);
+            let mut any = false;
+            for j in j0..=j1 {
+                for yy in [y.checked_sub(j), (j > 0).then_some(y + j)]
+                    .into_iter()
+                    .flatten()
+                {
+                    if yy < h {
+                        for (a, s) in acc.iter_mut().zip(input.row(yy)) {
+                            *a |= *s;
+                        }
+                        any = true;
+                    }
+                }
+            }
+            if !any {
+                continue;
+            }
+            dilate_row(&mut acc, k, &mut scratch);
+            for (o, a) in out_row.iter_mut().zip(&acc) {
+                *o |= *a;
+            }
+        }
+        if let Some(last) = out_row.last_mut() {
+            *last &= mask;
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn disc_of_two_pixels_square_pitch() {
+        // r = 2 px exactly: offsets with i² + j² <= 4 (Euclidean disc, counted by hand):
+        // rows j=0: |i|<=2, j=1: |i|<=1 (1+1=2, 4+1=5>4), j=2: i=0.
+        let p = Pitch::from_dpi(1200.0, 1200.0);
+        let d = DiscKernel::new(2.0 * p.x_um, p, 100, 100);
+        assert_eq!(d.half_widths, vec![2, 1, 0]);
+    }
+
+    #[test]
+    fn realized_offset_floors_per_axis() {
+        // 1200 × 600 dpi: pitch 21.1667 × 42.3333 µm. 50 µm → 2 px (42.33 µm) in x, 1 px in y.
+        let p = Pitch::from_dpi(1200.0, 600.0);
+        let r = realized_offset(50.0, p);
+        assert_eq!((r.x_px, r.y_px), (2, 1));
+        assert!((r.x_um - 2.0 * 25_400.0 / 1200.0).abs() < 1e-9);
+        let r = realized_offset(-50.0, p);
+        assert_eq!((r.x_px, r.y_px), (-2, -1));
+        // TRADE.md worked example: +10 µm at 1200 dpi realizes 0 px.
+        assert!(rounds_to_zero(10.0, Pitch::from_dpi(1200.0, 1200.0)));
+        assert!(!rounds_to_zero(21.2, Pitch::from_dpi(1200.0, 1200.0)));
+    }
+}

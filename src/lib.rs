@@ -6,9 +6,11 @@
 pub mod diag;
 pub mod excellon;
 pub mod film;
+pub mod films;
 pub mod gerber;
 pub mod image;
 pub mod inspect;
+pub mod job;
 pub mod layers;
 pub mod limits;
 pub mod load;

@@ -133,6 +133,39 @@ pub struct LayerOverrides {
     pub paste: LayerOverride,
 }
 
+/// Which films to make and how many of each.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct FilmsSection {
+    /// Copper of the top and bottom sides.
+    pub copper: bool,
+    /// Inner copper layers (rarely made at home).
+    pub inner_copper: bool,
+    pub mask: bool,
+    pub legend: bool,
+    pub paste: bool,
+    /// Copies of each film; makers stack two films when toner alone is not opaque enough.
+    pub copies: u32,
+    /// Also write an Excellon file of tooling holes at the registration target centres.
+    pub tooling_holes: bool,
+    pub tooling_hole_mm: f64,
+}
+
+impl Default for FilmsSection {
+    fn default() -> Self {
+        FilmsSection {
+            copper: true,
+            inner_copper: false,
+            mask: true,
+            legend: false,
+            paste: false,
+            copies: 1,
+            tooling_holes: false,
+            tooling_hole_mm: 3.0,
+        }
+    }
+}
+
 /// The user's process profile (TOML).
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 #[serde(default, deny_unknown_fields)]
@@ -141,6 +174,9 @@ pub struct Profile {
     pub process: ProcessSection,
     pub drill_marks: DrillMarkSection,
     pub layers: LayerOverrides,
+    pub films: FilmsSection,
+    pub sheet: crate::sheet::SheetSpec,
+    pub artwork: crate::film::compose::ArtworkOptions,
 }
 
 /// A profile that could not be used.
@@ -151,6 +187,9 @@ pub struct ProfileError {
     pub pos: Option<crate::diag::Pos>,
     pub message: String,
 }
+
+/// The fully commented default profile that `umbra profile init` writes.
+pub const DEFAULT_PROFILE_TOML: &str = include_str!("default-profile.toml");
 
 impl Profile {
     /// Parses and checks a profile. `file` names it in messages.
@@ -217,6 +256,29 @@ impl Profile {
         if !(dm.min_annular_ring_mm.is_finite() && dm.min_annular_ring_mm >= 0.0) {
             return Err("drill_marks.min_annular_ring_mm must be 0 or more".into());
         }
+        if !(1..=20).contains(&self.films.copies) {
+            return Err(format!(
+                "films.copies = {} must be between 1 and 20",
+                self.films.copies
+            ));
+        }
+        if !(self.films.tooling_hole_mm.is_finite()
+            && (0.5..=10.0).contains(&self.films.tooling_hole_mm))
+        {
+            return Err("films.tooling_hole_mm must be between 0.5 and 10 mm".into());
+        }
+        let a = &self.artwork;
+        for (k, v, lo, hi) in [
+            ("artwork.target_size_mm", a.target_size_mm, 1.0, 30.0),
+            ("artwork.target_margin_mm", a.target_margin_mm, 0.5, 50.0),
+            ("artwork.line_mm", a.line_mm, 0.05, 2.0),
+            ("artwork.label_cap_mm", a.label_cap_mm, 0.5, 10.0),
+            ("artwork.border_mm", a.border_mm, 0.0, 50.0),
+        ] {
+            if !(v.is_finite() && (lo..=hi).contains(&v)) {
+                return Err(format!("{k} = {v} must be between {lo} and {hi}"));
+            }
+        }
         Ok(())
     }
 
@@ -242,10 +304,9 @@ impl Profile {
 /// The decisions for one film.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct FilmRecipe {
-    /// Film black where the layer image is dark (true) or where it is not (false). Gerber's
-    /// own polarity (LPD/LPC, IPNEG) is already resolved in the image; `.FilePolarity` and
-    /// the function's meaning of "dark" are folded in here.
-    pub black_is_dark: bool,
+    /// Whether the layer image's dark objects stand for material (copper, mask opening,
+    /// legend ink) — false for a negative file (`.FilePolarity,Negative` copper, `%IPNEG*%`).
+    pub dark_is_material: bool,
     /// Whether black stands for material (copper, mask opening, legend ink).
     pub black_is_material: bool,
     /// Flip left-right.
@@ -319,7 +380,6 @@ pub fn plan(id: &LayerId, image_negative: bool, profile: &Profile) -> FilmRecipe
         None => black_is_material,
     };
     let dark_material = dark_is_material(id) != image_negative;
-    let black_is_dark = black_is_material == dark_material;
 
     // Mirroring: docs/film-rules.md, "Mirroring".
     let top_like = !matches!(id.side, Side::Bottom);
@@ -391,7 +451,7 @@ pub fn plan(id: &LayerId, image_negative: bool, profile: &Profile) -> FilmRecipe
     };
 
     FilmRecipe {
-        black_is_dark,
+        dark_is_material: dark_material,
         black_is_material,
         mirror,
         scale_x: profile.printer.scale_x,

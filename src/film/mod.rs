@@ -1,2 +1,3 @@
+pub mod compose;
 pub mod font;
 pub mod marks;

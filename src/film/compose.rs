@@ -1,0 +1,401 @@
+//! Composing and rendering one film: the layer image, drill-centre marks, registration
+//! targets and the label, rendered at the device's resolution with the recipe's polarity,
+//! mirror, scale and edge offset.
+//!
+//! # Material space
+//! Everything is first rendered in *material* terms (copper, mask opening, legend ink):
+//! `material = image (or its complement when the file's dark means absence) − drill dots +
+//! artwork`. Targets and labels count as material, so on every film they print in the
+//! material's colour and end up as copper (or mask opening, or ink) in the board's margin:
+//! visible on the film whatever its polarity. Drill dots are absence of material. Then
+//! `black = material` or its complement (the recipe), and only then is the black edge offset
+//! applied, on the composed film (docs/film-rules.md).
+
+use super::marks;
+use crate::excellon::DrillFile;
+use crate::image::{Bounds, LayerImage, Object, Point, Polarity, Shape};
+use crate::process::{DrillMarkStyle, FilmRecipe};
+use crate::raster::morphology::{self, Pitch, RealizedOffset};
+use crate::raster::{render, Bitmap, DeviceMap};
+use serde::Serialize;
+
+/// Sizes of the artwork umbra adds around the board (mm).
+#[derive(Debug, Clone, PartialEq, Serialize, serde::Deserialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct ArtworkOptions {
+    /// Draw the three registration targets.
+    pub registration: bool,
+    /// Outer diameter of a registration target.
+    pub target_size_mm: f64,
+    /// Clearance between the board and the nearest target edge.
+    pub target_margin_mm: f64,
+    /// Line width of targets, frame and corner marks.
+    pub line_mm: f64,
+    /// Draw the label.
+    pub label: bool,
+    /// Cap height of label text; 1.5 mm reads easily with a loupe at 600 dpi and up.
+    pub label_cap_mm: f64,
+    /// Clear border around everything, inside the film.
+    pub border_mm: f64,
+    /// Draw a thin frame at the film's edge, for cutting it out.
+    pub frame: bool,
+}
+
+impl Default for ArtworkOptions {
+    fn default() -> Self {
+        ArtworkOptions {
+            registration: true,
+            target_size_mm: 5.0,
+            target_margin_mm: 3.0,
+            line_mm: 0.2,
+            label: true,
+            label_cap_mm: 1.5,
+            border_mm: 2.0,
+            frame: false,
+        }
+    }
+}
+
+/// Where things go on every film of one board. All films of a board share it, so the
+/// targets sit at the same board coordinates on each (docs/film-rules.md, Registration).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BoardFrame {
+    /// The board's extents (outline, or copper when there is no outline), mm.
+    pub board: Bounds,
+    /// Registration target centres, board mm.
+    pub targets: Option<[Point; 3]>,
+    /// Lower-left corner of the label block, board mm.
+    pub label_anchor: Point,
+    /// The film's area in board mm: everything above plus the border.
+    pub film: Bounds,
+}
+
+impl BoardFrame {
+    /// Plans the frame for a board of extents `board` whose largest label block is
+    /// `label_size` (w, h) mm.
+    pub fn new(board: Bounds, label_size: (f64, f64), opts: &ArtworkOptions) -> BoardFrame {
+        let mut all = board;
+        let targets = opts.registration.then(|| {
+            let t = marks::registration_targets(board, opts.target_margin_mm, opts.target_size_mm);
+            for p in &t {
+                all.add_circle(*p, opts.target_size_mm / 2.0);
+            }
+            t
+        });
+        // The label goes below everything drawn so far, left-aligned.
+        let gap = if opts.label { 1.5 } else { 0.0 };
+        let label_anchor = Point::new(all.min_x, all.min_y - gap - label_size.1);
+        if opts.label && label_size.0 > 0.0 {
+            all.add_point(label_anchor);
+            all.add_point(Point::new(
+                label_anchor.x + label_size.0,
+                label_anchor.y + label_size.1,
+            ));
+        }
+        BoardFrame {
+            board,
+            targets,
+            label_anchor,
+            film: all.grown(opts.border_mm),
+        }
+    }
+}
+
+/// One film ready to render.
+#[derive(Debug, Clone)]
+pub struct FilmJob<'a> {
+    pub image: &'a LayerImage,
+    pub recipe: &'a FilmRecipe,
+    pub drills: &'a [&'a DrillFile],
+    pub frame: &'a BoardFrame,
+    /// Label lines (already decided by the caller, including the realized offset).
+    pub label: Vec<String>,
+    pub label_mirrored: bool,
+    pub opts: &'a ArtworkOptions,
+}
+
+/// A drill hit and the finished hole's diameter, board mm.
+#[derive(Debug, Clone, Copy)]
+struct Hit {
+    at: Point,
+    hole_mm: f64,
+}
+
+fn drill_hits(drills: &[&DrillFile]) -> Vec<Hit> {
+    let mut hits = Vec::new();
+    for d in drills {
+        for h in &d.holes {
+            hits.push(Hit {
+                at: h.at,
+                hole_mm: d.tools[h.tool].diameter_mm,
+            });
+        }
+    }
+    hits
+}
+
+/// The drill-centre marks (absence of material) for `style`.
+fn drill_mark_shapes(drills: &[&DrillFile], style: DrillMarkStyle, pilot_mm: f64) -> Vec<Shape> {
+    let mut shapes = Vec::new();
+    if style == DrillMarkStyle::None {
+        return shapes;
+    }
+    for d in drills {
+        for h in &d.holes {
+            let dia = match style {
+                DrillMarkStyle::Full => d.tools[h.tool].diameter_mm,
+                _ => pilot_mm,
+            };
+            shapes.push(Shape::Disc {
+                center: h.at,
+                diameter: dia,
+            });
+        }
+        for s in &d.slots {
+            let w = d.tools[s.tool].diameter_mm;
+            match style {
+                DrillMarkStyle::Full => {
+                    for pair in s.path.windows(2) {
+                        shapes.push(Shape::Stroke {
+                            start: pair[0],
+                            end: pair[1],
+                            arc: None,
+                            width: w,
+                        });
+                    }
+                }
+                _ => {
+                    // A pilot dot at each end: where the cutter plunges.
+                    for p in [s.path.first(), s.path.last()].into_iter().flatten() {
+                        shapes.push(Shape::Disc {
+                            center: *p,
+                            diameter: pilot_mm,
+                        });
+                    }
+                }
+            }
+        }
+    }
+    shapes
+}
+
+/// The artwork (material) around the board: targets and label.
+fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
+    let o = job.opts;
+    let mut shapes = Vec::new();
+    if let Some(t) = &job.frame.targets {
+        for p in t {
+            shapes.extend(marks::target_shapes(*p, o.target_size_mm, o.line_mm));
+        }
+    }
+    if o.label && !job.label.is_empty() {
+        shapes.extend(marks::label_shapes(
+            &job.label,
+            job.frame.label_anchor,
+            o.label_cap_mm,
+            job.label_mirrored,
+        ));
+    }
+    if o.frame {
+        shapes.extend(marks::frame_shapes(
+            job.frame.film.grown(-o.line_mm),
+            o.line_mm,
+        ));
+    }
+    shapes
+}
+
+/// A film rendered at device resolution: bit 1 = black (opaque).
+#[derive(Debug, Clone)]
+pub struct RenderedFilm {
+    pub bitmap: Bitmap,
+    pub map: DeviceMap,
+    pub realized: RealizedOffset,
+    /// Holes whose drill mark or hole leaves less copper ring than the minimum: (centre, ring mm).
+    pub thin_rings: Vec<(Point, f64)>,
+    pub warnings: Vec<String>,
+}
+
+/// The device map of a film: the frame's film area at the recipe's resolution, with the
+/// printer-stretch correction and the mirror.
+pub fn film_map(frame: &BoardFrame, recipe: &FilmRecipe) -> DeviceMap {
+    let sx = recipe.dpi_x / 25.4 * recipe.scale_x;
+    let sy = recipe.dpi_y / 25.4 * recipe.scale_y;
+    let w = (frame.film.width() * sx).ceil().max(1.0) as usize;
+    let h = (frame.film.height() * sy).ceil().max(1.0) as usize;
+    let mut map = DeviceMap::new(
+        Point::new(frame.film.min_x, frame.film.min_y),
+        w,
+        h,
+        recipe.dpi_x,
+        recipe.dpi_y,
+    )
+    .with_mirror(recipe.mirror);
+    map.scale_x = recipe.scale_x;
+    map.scale_y = recipe.scale_y;
+    map
+}
+
+/// The radius passed to the morphology so that the realized offset is the *nearest* whole
+/// number of pixels to the request (the disc reaches floor(r/pitch) pixels; see
+/// raster::morphology), along the finer axis.
+pub fn morphology_radius_um(offset_um: f64, pitch: Pitch) -> f64 {
+    let p = pitch.x_um.min(pitch.y_um);
+    let n = (offset_um.abs() / p).round();
+    offset_um.signum() * n * p
+}
+
+/// What the film's edge offset becomes on its pixel grid.
+pub fn realized_for(recipe: &FilmRecipe) -> RealizedOffset {
+    let pitch = Pitch::from_dpi(recipe.dpi_x, recipe.dpi_y);
+    let mut r =
+        morphology::realized_offset(morphology_radius_um(recipe.edge_offset_um, pitch), pitch);
+    r.requested_um = recipe.edge_offset_um;
+    r
+}
+
+fn objects(shapes: Vec<Shape>, polarity: Polarity) -> Vec<Object> {
+    shapes
+        .into_iter()
+        .map(|shape| Object { polarity, shape })
+        .collect()
+}
+
+/// Sets `dst` to `dst & !src` (`clear`) or `dst | src`, word by word.
+fn combine(dst: &mut Bitmap, src: &Bitmap, clear: bool) {
+    for y in 0..dst.height() {
+        let s = src.row(y).to_vec();
+        for (d, s) in dst.row_mut(y).iter_mut().zip(s) {
+            if clear {
+                *d &= !s;
+            } else {
+                *d |= s;
+            }
+        }
+    }
+}
+
+/// Renders one film. See the module docs for the order of operations.
+pub fn render_film(job: &FilmJob<'_>, min_annular_ring_mm: f64) -> RenderedFilm {
+    let recipe = job.recipe;
+    let map = film_map(job.frame, recipe);
+    let mut warnings = Vec::new();
+
+    // 1. The layer image in material terms.
+    let mut material = render(&job.image.objects, &map);
+    if !recipe.dark_is_material {
+        material.invert();
+    }
+
+    // 2. Drill-centre marks, after checking the copper ring each leaves.
+    let mut thin_rings = Vec::new();
+    if recipe.drill_marks != DrillMarkStyle::None && !job.drills.is_empty() {
+        for hit in drill_hits(job.drills) {
+            let mark = match recipe.drill_marks {
+                DrillMarkStyle::Full => hit.hole_mm,
+                _ => recipe.pilot_diameter_mm,
+            };
+            // After etching and drilling, the hole is the larger of the mark and the drill.
+            let need = hit.hole_mm.max(mark) / 2.0 + min_annular_ring_mm;
+            if let Some(ring) =
+                copper_ring(&material, &map, hit.at, hit.hole_mm.max(mark) / 2.0, need)
+            {
+                thin_rings.push((hit.at, ring));
+            }
+        }
+        let dots = drill_mark_shapes(job.drills, recipe.drill_marks, recipe.pilot_diameter_mm);
+        let dots = render(&objects(dots, Polarity::Dark), &map);
+        combine(&mut material, &dots, true);
+        if !thin_rings.is_empty() {
+            warnings.push(format!(
+                "{} hole(s) would keep less than the {:.2} mm minimum annular ring (smallest {:.3} mm at {:.2}, {:.2} mm)",
+                thin_rings.len(),
+                min_annular_ring_mm,
+                thin_rings.iter().map(|r| r.1).fold(f64::INFINITY, f64::min),
+                thin_rings[0].0.x,
+                thin_rings[0].0.y
+            ));
+        }
+    }
+
+    // 3. Targets and label, as material.
+    let art = artwork_shapes(job);
+    if !art.is_empty() {
+        let art = render(&objects(art, Polarity::Dark), &map);
+        combine(&mut material, &art, false);
+    }
+
+    // 4. Black and clear, then the edge offset on the composed film.
+    if !recipe.black_is_material {
+        material.invert();
+    }
+    let pitch = Pitch::from_dpi(recipe.dpi_x, recipe.dpi_y);
+    let realized = realized_for(recipe);
+    let radius = morphology_radius_um(recipe.edge_offset_um, pitch);
+    let bitmap = if radius != 0.0 {
+        morphology::offset(&material, radius, pitch)
+    } else {
+        material
+    };
+    if recipe.edge_offset_um != 0.0 && realized.x_px == 0 && realized.y_px == 0 {
+        warnings.push(format!(
+            "edge offset {:+.1} µm is below half a pixel ({:.1} µm at {} dpi): realized 0 px (+0 µm)",
+            recipe.edge_offset_um,
+            pitch.x_um.min(pitch.y_um) / 2.0,
+            recipe.dpi_x.max(recipe.dpi_y)
+        ));
+    }
+    RenderedFilm {
+        bitmap,
+        map,
+        realized,
+        thin_rings,
+        warnings,
+    }
+}
+
+/// The copper ring left around a hole of radius `hole_r` at `at`, when it is thinner than
+/// needed: measures the distance from `at` to the nearest non-material pixel centre outside
+/// the hole, up to `need` mm. `None` when the ring is at least `need − hole_r` wide or there
+/// is no copper at the hole at all (a hole in a bare area, e.g. a mounting hole).
+fn copper_ring(
+    material: &Bitmap,
+    map: &DeviceMap,
+    at: Point,
+    hole_r: f64,
+    need: f64,
+) -> Option<f64> {
+    let (cx, cy) = map.to_px(at);
+    let (ix, iy) = (cx.floor() as i64, cy.floor() as i64);
+    let inside = |x: i64, y: i64| {
+        x >= 0
+            && y >= 0
+            && (x as usize) < material.width()
+            && (y as usize) < material.height()
+            && material.get(x as usize, y as usize)
+    };
+    // No copper at the centre: nothing to keep a ring of.
+    if !inside(ix, iy) {
+        return None;
+    }
+    let sx = map.px_per_mm_x();
+    let sy = map.px_per_mm_y();
+    let rx = (need * sx).ceil() as i64 + 1;
+    let ry = (need * sy).ceil() as i64 + 1;
+    let mut nearest = f64::INFINITY;
+    for y in (iy - ry)..=(iy + ry) {
+        for x in (ix - rx)..=(ix + rx) {
+            let dx = (x as f64 + 0.5 - cx) / sx;
+            let dy = (y as f64 + 0.5 - cy) / sy;
+            let d = dx.hypot(dy);
+            if d <= need && d < nearest && !inside(x, y) {
+                nearest = d;
+            }
+        }
+    }
+    if nearest.is_finite() {
+        Some((nearest - hole_r).max(0.0))
+    } else {
+        None
+    }
+}

@@ -17,7 +17,11 @@ impl MacroDef {
     /// name, each without its terminating `*`, with the position of its first character.
     pub fn parse(name: &str, blocks: &[(&str, Pos)], file: &str) -> Result<MacroDef, InputError> {
         let _ = blocks;
-        Err(InputError::new(file, Pos::new(1, 1), format!("macro {name}: not written yet")))
+        Err(InputError::new(
+            file,
+            Pos::new(1, 1),
+            format!("macro {name}: not written yet"),
+        ))
     }
 
     /// Evaluates the macro for the AD parameters `params` ($1, $2, ...) into one shape in

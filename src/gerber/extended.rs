@@ -120,8 +120,16 @@ pub fn parse<'a>(
             if params.is_empty() {
                 return Ok(CommandKind::BlockClose);
             }
-            let digits = params.strip_prefix(['D', 'd']).unwrap_or("");
-            match digits.parse::<u32>() {
+            // `%ABD10*%`; some writers leave out the D, whose intent is still clear.
+            let digits = params.strip_prefix(['D', 'd']);
+            if digits.is_none() {
+                warnings.push(Warning::new(
+                    file,
+                    Some(block.pos),
+                    format!("%AB{params}: the aperture number needs a D (ABD{params}); read as D{params}"),
+                ));
+            }
+            match digits.unwrap_or(params).parse::<u32>() {
                 Ok(code) if code >= 10 => Ok(CommandKind::BlockOpen(code)),
                 _ => Err(err(format!(
                     "%AB must name an aperture number D10 or higher, not '{params}'"

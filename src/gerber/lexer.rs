@@ -127,11 +127,7 @@ impl<'a> Lexer<'a> {
             }
             if self.i >= self.bytes.len() {
                 if self.in_group {
-                    return Err(InputError::new(
-                        self.file,
-                        self.group_pos,
-                        "the file ends inside an extended command: the '%' opened here is never closed (is the file truncated?)",
-                    ));
+                    return Err(self.unclosed_group());
                 }
                 return Ok(None);
             }
@@ -149,6 +145,14 @@ impl<'a> Lexer<'a> {
             }
             return self.block(warnings).map(Some);
         }
+    }
+
+    fn unclosed_group(&self) -> InputError {
+        InputError::new(
+            self.file,
+            self.group_pos,
+            "the file ends inside an extended command: the '%' opened here is never closed (is the file truncated?)",
+        )
     }
 
     fn block(&mut self, warnings: &mut Vec<Warning>) -> Result<Token<'a>, InputError> {
@@ -176,7 +180,21 @@ impl<'a> Lexer<'a> {
         }
         let stop = end.unwrap_or(self.i);
         if end.is_none() && stop > start {
-            let what = if self.i >= self.bytes.len() {
+            let at_end = self.i >= self.bytes.len();
+            let body = self.text[start..stop].trim().to_ascii_uppercase();
+            if at_end && self.in_group {
+                return Err(self.unclosed_group());
+            }
+            if at_end && !matches!(body.as_str(), "M02" | "M2" | "M00" | "M0") {
+                // A cut-off command could be a cut-off coordinate: reading it would put
+                // an object in the wrong place.
+                return Err(InputError::new(
+                    self.file,
+                    pos,
+                    "the file ends in the middle of a command (no closing '*'); is the file truncated?",
+                ));
+            }
+            let what = if at_end {
                 "the file ends"
             } else {
                 "a '%' follows"

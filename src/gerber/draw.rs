@@ -344,7 +344,7 @@ impl Interpreter<'_> {
             }
             _ => {
                 if let Some(shape) = ap.flash_shape() {
-                    let shape = shape.transformed(&self.aperture_similarity(k, p));
+                    let shape = place(shape, &self.aperture_similarity(k, p));
                     self.emit(pos, self.polarity, shape)?;
                 }
             }
@@ -387,6 +387,30 @@ impl Interpreter<'_> {
         }
         self.sinks.stats.regions += 1;
         self.emit(pos, self.polarity, Shape::Polygon(contour))
+    }
+}
+
+/// `shape.transformed(sim)`, reusing the shape's storage for polygons (the common
+/// rectangle pad), which saves an allocation per flash.
+fn place(shape: Shape, sim: &Similarity) -> Shape {
+    match shape {
+        Shape::Polygon(mut c) => {
+            c.start = sim.apply(c.start);
+            for seg in &mut c.segments {
+                match seg {
+                    Segment::Line { to } => *to = sim.apply(*to),
+                    Segment::Arc { to, center, turn } => {
+                        *to = sim.apply(*to);
+                        *center = sim.apply(*center);
+                        if sim.reverses() {
+                            *turn = turn.flipped();
+                        }
+                    }
+                }
+            }
+            Shape::Polygon(c)
+        }
+        other => other.transformed(sim),
     }
 }
 

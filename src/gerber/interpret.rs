@@ -28,6 +28,31 @@ use crate::diag::{InputError, Pos, Warning};
 use crate::image::{LayerImage, Point, Polarity};
 use crate::limits::Limits;
 use std::collections::{BTreeMap, HashMap, HashSet};
+use std::hash::{BuildHasherDefault, Hasher};
+
+/// Hashes aperture numbers with the splitmix64 finalizer: a bijection whose every output bit
+/// depends on every input bit, so codes chosen to share low bits still spread over the
+/// table (no quadratic probing on hostile files), at a fraction of SipHash's cost (SipHash
+/// took 3 % of reading time).
+#[derive(Default)]
+pub(super) struct CodeHasher(u64);
+
+impl Hasher for CodeHasher {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for &b in bytes {
+            self.0 = (self.0 ^ b as u64).wrapping_mul(0x100_0000_01b3);
+        }
+    }
+    fn write_u32(&mut self, v: u32) {
+        let mut z = (v as u64).wrapping_add(0x9E37_79B9_7F4A_7C15);
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        self.0 = z ^ (z >> 31);
+    }
+}
 
 /// An open region (G36 … G37).
 #[derive(Debug, Default)]
@@ -53,7 +78,7 @@ pub(super) struct Interpreter<'f> {
     /// Current point in file units, before the image transform; `None` until set.
     pub current: Option<Point>,
     pub aperture: Option<u32>,
-    pub apertures: HashMap<u32, Aperture>,
+    pub apertures: HashMap<u32, Aperture, BuildHasherDefault<CodeHasher>>,
     macros: HashMap<String, MacroDef>,
 
     pub polarity: Polarity,
@@ -91,7 +116,7 @@ impl<'f> Interpreter<'f> {
             last_op: None,
             current: None,
             aperture: None,
-            apertures: HashMap::new(),
+            apertures: HashMap::default(),
             macros: HashMap::new(),
             polarity: Polarity::Dark,
             mirror: (false, false),

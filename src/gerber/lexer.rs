@@ -205,8 +205,13 @@ impl<'a> Lexer<'a> {
                 format!("this data block has no closing '*' ({what}); read as if it had one"),
             ));
         }
-        let raw = &self.text[start..stop];
-        let trimmed = raw.trim_end_matches([' ', '\t', '\r', '\n']);
+        let mut trimmed_end = stop;
+        while trimmed_end > start
+            && matches!(self.bytes[trimmed_end - 1], b' ' | b'\t' | b'\r' | b'\n')
+        {
+            trimmed_end -= 1;
+        }
+        let trimmed = &self.text[start..trimmed_end];
         let text = if has_line_break && trimmed.contains(['\r', '\n']) {
             Cow::Owned(
                 trimmed

@@ -78,13 +78,23 @@ pub fn read(text: &str, file: &str, limits: &Limits) -> Result<GerberFile, Input
     let mut parser = parser::Parser::new(text, file);
     let mut interp = interpret::Interpreter::new(file, limits);
     let mut last_pos = Pos::new(1, 1);
-    while let Some(cmd) = parser.next_command(&mut interp.warnings)? {
+    let mut after_end = None;
+    parser.run(|cmd| {
         last_pos = cmd.pos;
         if interp.ended() {
-            interp.warn(cmd.pos, "commands after M02 (end of file) are ignored");
-            break;
+            after_end = Some(cmd.pos);
+            return Ok(false);
         }
         interp.execute(cmd)?;
+        Ok(true)
+    })?;
+    if let Some(pos) = after_end {
+        interp.warn(pos, "commands after M02 (end of file) are ignored");
     }
+    // Parser and interpreter warnings, merged into file order.
+    interp.warnings.append(&mut parser.warnings);
+    interp
+        .warnings
+        .sort_by_key(|w| w.pos.map(|p| (p.line, p.column)));
     interp.finish(last_pos)
 }

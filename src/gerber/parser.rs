@@ -15,20 +15,22 @@ use super::lexer::{Block, Lexer, Token};
 use super::Units;
 use crate::diag::{InputError, Pos, Warning};
 use std::borrow::Cow;
-use std::collections::VecDeque;
 
 /// An `%AM` group being collected: name, position, data blocks.
 type PendingMacro<'a> = (&'a str, Pos, Vec<(Cow<'a, str>, Pos)>);
 
-/// Produces commands one at a time.
+/// Reads commands and hands each to a sink as soon as it is parsed (no command list is
+/// built, and a command is constructed where the sink receives it).
 pub struct Parser<'a> {
     lexer: Lexer<'a>,
     file: &'a str,
-    queue: VecDeque<Command<'a>>,
-    /// An `%AM` group being collected: its name, position and blocks.
+    /// Warnings found while parsing, in file order.
+    pub warnings: Vec<Warning>,
     macro_def: Option<PendingMacro<'a>>,
     /// Coordinates with a decimal point are reported once per file.
     decimal_point_warned: bool,
+    /// The sink asked to stop (end of file reached).
+    stopped: bool,
 }
 
 impl<'a> Parser<'a> {
@@ -36,49 +38,56 @@ impl<'a> Parser<'a> {
         Parser {
             lexer: Lexer::new(text, file),
             file,
-            queue: VecDeque::with_capacity(8),
+            warnings: Vec::new(),
             macro_def: None,
             decimal_point_warned: false,
+            stopped: false,
         }
     }
 
-    /// The next command, or `None` at the end of the text.
-    pub fn next_command(
-        &mut self,
-        warnings: &mut Vec<Warning>,
-    ) -> Result<Option<Command<'a>>, InputError> {
-        loop {
-            if let Some(c) = self.queue.pop_front() {
-                return Ok(Some(c));
-            }
-            let Some(token) = self.lexer.next_token(warnings)? else {
-                return Ok(None);
+    /// Parses the whole text, calling `sink` with each command in order. The sink returns
+    /// `Ok(false)` to stop reading (after `M02`).
+    pub fn run<F>(&mut self, mut sink: F) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
+        while !self.stopped {
+            let Some(token) = self.lexer.next_token(&mut self.warnings)? else {
+                break;
             };
             match token {
                 Token::GroupEnd => {
                     if let Some((name, pos, blocks)) = self.macro_def.take() {
-                        self.queue.push_back(Command {
-                            pos,
-                            kind: CommandKind::MacroDefine { name, blocks },
-                        });
+                        self.emit(&mut sink, pos, CommandKind::MacroDefine { name, blocks })?;
                     }
                 }
                 Token::Block(block) => {
                     if block.extended {
-                        self.extended_block(block, warnings)?;
+                        self.extended_block(block, &mut sink)?;
                     } else {
-                        self.function_block(&block, warnings)?;
+                        self.function_block(&block, &mut sink)?;
                     }
                 }
             }
         }
+        Ok(())
     }
 
-    fn extended_block(
-        &mut self,
-        block: Block<'a>,
-        warnings: &mut Vec<Warning>,
-    ) -> Result<(), InputError> {
+    #[inline]
+    fn emit<F>(&mut self, sink: &mut F, pos: Pos, kind: CommandKind<'a>) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
+        if !self.stopped && !sink(Command { pos, kind })? {
+            self.stopped = true;
+        }
+        Ok(())
+    }
+
+    fn extended_block<F>(&mut self, block: Block<'a>, sink: &mut F) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
         if let Some((_, _, blocks)) = &mut self.macro_def {
             blocks.push((block.text, block.pos));
             return Ok(());
@@ -109,19 +118,14 @@ impl<'a> Parser<'a> {
             self.macro_def = Some((name, block.pos, Vec::new()));
             return Ok(());
         }
-        let kind = extended::parse(&block, self.file, warnings)?;
-        self.queue.push_back(Command {
-            pos: block.pos,
-            kind,
-        });
-        Ok(())
+        let kind = extended::parse(&block, self.file, &mut self.warnings)?;
+        self.emit(sink, block.pos, kind)
     }
 
-    fn function_block(
-        &mut self,
-        block: &Block<'a>,
-        warnings: &mut Vec<Warning>,
-    ) -> Result<(), InputError> {
+    fn function_block<F>(&mut self, block: &Block<'a>, sink: &mut F) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
         let text: &str = &block.text;
         let b = text.as_bytes();
         let mut k = 0;
@@ -133,7 +137,7 @@ impl<'a> Parser<'a> {
             match letter {
                 b' ' | b'\t' => k += 1,
                 b'X' | b'Y' | b'I' | b'J' => {
-                    let (n, next) = self.coordinate(block, k + 1, warnings)?;
+                    let (n, next) = self.coordinate(block, k + 1)?;
                     let slot = match letter {
                         b'X' => 0,
                         b'Y' => 1,
@@ -152,8 +156,8 @@ impl<'a> Parser<'a> {
                         2 => Operation::Move,
                         3 => Operation::Flash,
                         10.. => {
-                            self.flush_coords(&mut coords, &mut coords_pos, None);
-                            self.push(word_pos, CommandKind::SelectAperture(code));
+                            self.flush_coords(sink, &mut coords, &mut coords_pos, None)?;
+                            self.emit(sink, word_pos, CommandKind::SelectAperture(code))?;
                             continue;
                         }
                         _ => {
@@ -168,7 +172,7 @@ impl<'a> Parser<'a> {
                     };
                     let pos = coords_pos.unwrap_or(word_pos);
                     coords_pos = Some(pos);
-                    self.flush_coords(&mut coords, &mut coords_pos, Some(op));
+                    self.flush_coords(sink, &mut coords, &mut coords_pos, Some(op))?;
                 }
                 b'G' => {
                     let (code, next) = self.code_number(block, k + 1, 'G')?;
@@ -180,8 +184,7 @@ impl<'a> Parser<'a> {
                             Cow::Borrowed(t) => t[k..].trim(),
                             Cow::Owned(_) => "",
                         };
-                        self.comment(comment, word_pos, warnings);
-                        return Ok(());
+                        return self.comment(sink, comment, word_pos);
                     }
                     let kind = match code {
                         1 => CommandKind::Interpolation(Interpolation::Linear),
@@ -209,7 +212,7 @@ impl<'a> Parser<'a> {
                         }
                         _ => CommandKind::IgnoredGCode(code),
                     };
-                    self.push(word_pos, kind);
+                    self.emit(sink, word_pos, kind)?;
                 }
                 b'M' => {
                     let (code, next) = self.code_number(block, k + 1, 'M')?;
@@ -227,8 +230,8 @@ impl<'a> Parser<'a> {
                             ))
                         }
                     };
-                    self.flush_coords(&mut coords, &mut coords_pos, None);
-                    self.push(word_pos, kind);
+                    self.flush_coords(sink, &mut coords, &mut coords_pos, None)?;
+                    self.emit(sink, word_pos, kind)?;
                 }
                 b'N' => {
                     // Sequence numbers of old NC-style files: no meaning for the image.
@@ -245,38 +248,42 @@ impl<'a> Parser<'a> {
                 }
             }
         }
-        self.flush_coords(&mut coords, &mut coords_pos, None);
-        Ok(())
-    }
-
-    fn push(&mut self, pos: Pos, kind: CommandKind<'a>) {
-        self.queue.push_back(Command { pos, kind });
+        self.flush_coords(sink, &mut coords, &mut coords_pos, None)
     }
 
     /// Emits pending coordinates as one operation (`op: None` when the block had no D01–D03).
-    fn flush_coords(
+    fn flush_coords<F>(
         &mut self,
+        sink: &mut F,
         coords: &mut [Option<RawNumber>; 4],
         pos: &mut Option<Pos>,
         op: Option<Operation>,
-    ) {
-        if let Some(p) = pos.take() {
-            let [x, y, i, j] = std::mem::take(coords);
-            self.push(p, CommandKind::Operation { x, y, i, j, op });
+    ) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
+        match pos.take() {
+            Some(p) => {
+                let [x, y, i, j] = std::mem::take(coords);
+                self.emit(sink, p, CommandKind::Operation { x, y, i, j, op })
+            }
+            None => Ok(()),
         }
     }
 
-    fn comment(&mut self, text: &'a str, pos: Pos, warnings: &mut Vec<Warning>) {
+    fn comment<F>(&mut self, sink: &mut F, text: &'a str, pos: Pos) -> Result<(), InputError>
+    where
+        F: FnMut(Command<'a>) -> Result<bool, InputError>,
+    {
         // X2 attributes written as comments: `G04 #@! TF.FileFunction,Copper,L1,Top*`
         // (spec §5.1: "standard comments").
         if let Some(rest) = text.strip_prefix("#@!") {
             let rest = rest.trim_start();
-            if let Some(kind) = extended::attribute(rest, pos, self.file, warnings) {
-                self.push(pos, kind);
-                return;
+            if let Some(kind) = extended::attribute(rest, pos, self.file, &mut self.warnings) {
+                return self.emit(sink, pos, kind);
             }
         }
-        self.push(pos, CommandKind::Comment(text));
+        self.emit(sink, pos, CommandKind::Comment(text))
     }
 
     /// An unsigned code number after G, D, M or N.
@@ -304,12 +311,7 @@ impl<'a> Parser<'a> {
     }
 
     /// A coordinate number after X, Y, I or J: optional sign, digits, optional decimal point.
-    fn coordinate(
-        &mut self,
-        block: &Block,
-        k: usize,
-        warnings: &mut Vec<Warning>,
-    ) -> Result<(RawNumber, usize), InputError> {
+    fn coordinate(&mut self, block: &Block, k: usize) -> Result<(RawNumber, usize), InputError> {
         let b = block.text.as_bytes();
         let mut end = k;
         let mut negative = false;
@@ -335,7 +337,7 @@ impl<'a> Parser<'a> {
             })?;
             if !self.decimal_point_warned {
                 self.decimal_point_warned = true;
-                warnings.push(Warning::new(
+                self.warnings.push(Warning::new(
                     self.file,
                     Some(block.pos_at(k)),
                     "coordinates with a decimal point are not allowed by the Gerber spec (§4.2.2); read as a value in file units (not reported again)",
@@ -391,10 +393,12 @@ pub fn parse_all<'a>(
 ) -> Result<Vec<Command<'a>>, InputError> {
     let mut p = Parser::new(text, file);
     let mut out = Vec::new();
-    while let Some(c) = p.next_command(warnings)? {
+    let result = p.run(|c| {
         out.push(c);
-    }
-    Ok(out)
+        Ok(true)
+    });
+    warnings.append(&mut p.warnings);
+    result.map(|()| out)
 }
 
 #[cfg(test)]

@@ -27,6 +27,7 @@ struct Entry {
     path: PathBuf,
     uses_macros: bool,
     flashes: Option<u64>,
+    apertures: Option<u64>,
 }
 
 /// The Gerber files listed in the manifest.
@@ -48,6 +49,7 @@ fn gerber_files(dir: &Path) -> Vec<Entry> {
                 path: dir.join(folder).join(f["name"].as_str().expect("name")),
                 uses_macros: counts.iter().any(|c| c.starts_with("aperture-macros")),
                 flashes: f["flashes_D03"].as_u64(),
+                apertures: f["apertures"].as_u64(),
             });
         }
     }
@@ -96,6 +98,16 @@ fn check(only_without_macros: bool) {
                         n
                     );
                 }
+                // The manifest counts `%ADD` definitions; the corpus has no block apertures,
+                // so every definition is one of ours.
+                if let Some(n) = e.apertures {
+                    assert_eq!(
+                        g.image.stats.apertures as u64,
+                        n,
+                        "{}: aperture count",
+                        e.path.display()
+                    );
+                }
             }
             Err(msg) => failures.push(msg),
         }
@@ -117,4 +129,15 @@ fn realworld_gerbers_without_macros_read() {
 #[ignore = "needs macros: the aperture macro module is written separately"]
 fn realworld_gerbers_all_read() {
     check(false);
+}
+
+#[test]
+fn realworld_outline_has_the_stated_board_size() {
+    // The corpus README describes board 10 as "Tiny (26 x 23 mm)"; its Edge.Cuts outline,
+    // drawn with a thin pen, must span that to within the rounding of the description.
+    let Some(dir) = corpus() else { return };
+    let g = read(&dir.join("10-usb-pd-power-tap-2layer/power-pcb-Edge_Cuts.gm1")).expect("reads");
+    let b = g.image.bounds();
+    assert!((b.width() - 26.0).abs() < 0.6, "width {}", b.width());
+    assert!((b.height() - 23.0).abs() < 0.6, "height {}", b.height());
 }

@@ -211,6 +211,15 @@ fn sniff(text: &str) -> Sniffed {
     if excellon::looks_like_drill(text) {
         return Sniffed::Drill;
     }
+    // Gerber data starts with a command: an extended command (%), a G/D/M code, a
+    // coordinate, or a stray `*`. Prose that merely mentions Gerber commands does not.
+    let first = trimmed.chars().next().unwrap_or(' ');
+    if !matches!(
+        first.to_ascii_uppercase(),
+        '%' | 'G' | 'D' | 'M' | 'X' | 'Y' | 'I' | 'J' | '*'
+    ) {
+        return Sniffed::Other;
+    }
     if head.contains("%FS") || head.contains("%MO") || head.contains("%AD") || head.contains("%ADD")
     {
         return Sniffed::Gerber;

@@ -97,6 +97,9 @@ impl Aperture {
                 Ok(())
             }
         };
+        if !matches!(template, "C" | "R" | "O" | "P") {
+            return Ok(None); // a macro: its own checks apply
+        }
         if let Some(v) = params.iter().find(|v| **v < 0.0) {
             if template != "P" || params.get(2) != Some(v) {
                 return Err(err(format!("sizes cannot be negative ({v})")));

@@ -133,7 +133,12 @@ pub fn select<'a>(
     Ok(out)
 }
 
-/// The board's extents: the outline's, else the union of the copper layers', else of all.
+/// How far beyond the copper an outline layer's extents are believed, mm.
+const OUTLINE_BEYOND_COPPER_MM: f64 = 5.0;
+
+/// The board's extents: the outline's (but no more than a few mm beyond the copper: outline
+/// layers sometimes carry notes and panel drawings beside the board), else the union of the
+/// copper layers', else of all layers.
 pub fn board_extents(board: &Board, ids: &[Option<LayerId>]) -> Bounds {
     let by = |pred: &dyn Fn(&LayerId) -> bool| {
         let mut b = Bounds::EMPTY;
@@ -147,10 +152,22 @@ pub fn board_extents(board: &Board, ids: &[Option<LayerId>]) -> Bounds {
         b
     };
     let outline = by(&|id| id.function == LayerFunction::Outline);
-    if !outline.is_empty() {
-        return outline;
-    }
     let copper = by(&|id| id.function == LayerFunction::Copper);
+    if !outline.is_empty() {
+        if copper.is_empty() {
+            return outline;
+        }
+        let near = copper.grown(OUTLINE_BEYOND_COPPER_MM);
+        let clipped = Bounds {
+            min_x: outline.min_x.max(near.min_x),
+            min_y: outline.min_y.max(near.min_y),
+            max_x: outline.max_x.min(near.max_x),
+            max_y: outline.max_y.min(near.max_y),
+        };
+        if !clipped.is_empty() {
+            return clipped;
+        }
+    }
     if !copper.is_empty() {
         return copper;
     }

@@ -179,7 +179,6 @@ fn flash_of_undefined_aperture_is_an_error() {
 }
 
 #[test]
-#[ignore = "needs macros: the aperture macro module is written separately"]
 fn macro_flash_uses_the_macro_shape() {
     // Primitive 1 (circle): exposure, diameter, centre x, y (spec §4.5.1.3).
     let g = read_ok(&format!(

@@ -126,7 +126,6 @@ fn realworld_gerbers_without_macros_read() {
 }
 
 #[test]
-#[ignore = "needs macros: the aperture macro module is written separately"]
 fn realworld_gerbers_all_read() {
     check(false);
 }

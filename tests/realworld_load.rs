@@ -72,11 +72,21 @@ fn every_real_board_loads_with_sane_extents() {
         {
             failures.push(format!("{name}: implausible copper extents {copper:?}"));
         }
-        // Outline drawn with zero-width or thin lines; copper may touch it, allow 0.5 mm.
-        if !outline.is_empty() && !outline.grown(0.5).contains(&copper) {
-            failures.push(format!(
-                "{name}: copper extents {copper:?} exceed the outline {outline:?}"
-            ));
+        // The copper must lie on the board: the two boxes overlap by at least 80 % of the
+        // smaller one. (Some programs put notes beside the board on copper or outline layers,
+        // so either box may be the larger, but a unit or offset error would miss the board.)
+        if !outline.is_empty() {
+            let ix = (outline.max_x.min(copper.max_x) - outline.min_x.max(copper.min_x)).max(0.0);
+            let iy = (outline.max_y.min(copper.max_y) - outline.min_y.max(copper.min_y)).max(0.0);
+            let smaller =
+                (outline.width() * outline.height()).min(copper.width() * copper.height());
+            let covered = ix * iy / smaller;
+            if covered < 0.8 {
+                failures.push(format!(
+                    "{name}: copper extents {copper:?} overlap the outline by only {:.0} % of the smaller box {outline:?}",
+                    covered * 100.0
+                ));
+            }
         }
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));

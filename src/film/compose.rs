@@ -261,6 +261,38 @@ fn objects(shapes: Vec<Shape>, polarity: Polarity) -> Vec<Object> {
         .collect()
 }
 
+/// How far beyond the board's extents layer artwork is kept, mm (the outline is drawn with a
+/// line whose width reaches outside the nominal edge).
+const BOARD_CLIP_MARGIN_MM: f64 = 0.5;
+
+/// Clears every pixel whose centre lies outside `keep` (board mm).
+fn clear_outside(bitmap: &mut Bitmap, map: &DeviceMap, keep: &Bounds) {
+    let (ax, ay) = map.to_px(Point::new(keep.min_x, keep.min_y));
+    let (bx, by) = map.to_px(Point::new(keep.max_x, keep.max_y));
+    let (x0, x1) = (ax.min(bx), ax.max(bx));
+    let (y0, y1) = (ay.min(by), ay.max(by));
+    // Pixel i is kept when its centre i + 0.5 lies in [x0, x1].
+    let first = |v: f64| (v - 0.5).ceil().max(0.0) as usize;
+    let last = |v: f64, n: usize| ((v - 0.5).floor().max(-1.0) + 1.0).min(n as f64) as usize;
+    let (kx0, kx1) = (first(x0), last(x1, bitmap.width()));
+    let (ky0, ky1) = (first(y0), last(y1, bitmap.height()));
+    let w = bitmap.width();
+    for y in 0..bitmap.height() {
+        if y < ky0 || y >= ky1 || kx0 >= kx1 {
+            if w > 0 {
+                bitmap.fill_span(y, 0, w, false);
+            }
+            continue;
+        }
+        if kx0 > 0 {
+            bitmap.fill_span(y, 0, kx0, false);
+        }
+        if kx1 < w {
+            bitmap.fill_span(y, kx1, w, false);
+        }
+    }
+}
+
 /// Sets `dst` to `dst & !src` (`clear`) or `dst | src`, word by word.
 fn combine(dst: &mut Bitmap, src: &Bitmap, clear: bool) {
     for y in 0..dst.height() {
@@ -286,6 +318,13 @@ pub fn render_film(job: &FilmJob<'_>, min_annular_ring_mm: f64) -> RenderedFilm 
     if !recipe.dark_is_material {
         material.invert();
     }
+    // Nothing outside the board edge is made: notes and fab drawings that some EDA programs
+    // put beside the board on copper layers would otherwise print into the label and targets.
+    clear_outside(
+        &mut material,
+        &map,
+        &job.frame.board.grown(BOARD_CLIP_MARGIN_MM),
+    );
 
     // 2. Drill-centre marks, after checking the copper ring each leaves.
     let mut thin_rings = Vec::new();

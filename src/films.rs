@@ -369,7 +369,7 @@ pub fn make_films(
             opts: &profile.artwork,
         };
         let map = compose::film_map(&frame, &recipe);
-        if map.pixel_count() > crate::limits::Limits::default().max_film_pixels {
+        if map.pixel_count() > profile.input_limits.max_film_pixels {
             return Err(FilmsError::Layout(format!(
                 "the {} film would be {} × {} pixels, over the limit; lower the resolution",
                 s.title, map.width, map.height
@@ -783,6 +783,26 @@ pub fn run(
     }
     for w in &board.warnings {
         warnings.push(w.to_string());
+    }
+    // The readers' warnings: all of them when few, else a sample and a pointer to inspect.
+    let reader: Vec<String> = board
+        .files
+        .iter()
+        .flat_map(|f| match &f.content {
+            Content::Gerber(g) => g.warnings.iter().map(|w| w.to_string()).collect(),
+            Content::Drill(d) => d.warnings.iter().map(|w| w.to_string()).collect(),
+            _ => Vec::new(),
+        })
+        .collect();
+    const SHOWN: usize = 8;
+    if reader.len() > SHOWN {
+        warnings.extend(reader.iter().take(SHOWN - 1).cloned());
+        warnings.push(format!(
+            "… and {} more reader warnings; `umbra inspect` lists them all",
+            reader.len() - (SHOWN - 1)
+        ));
+    } else {
+        warnings.extend(reader);
     }
     let summary = Summary {
         board: opts.board_name.clone(),

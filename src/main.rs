@@ -4,7 +4,6 @@ use clap::{Args, Parser, Subcommand};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use umbra::job::Job;
-use umbra::limits::Limits;
 use umbra::load::{self, Content};
 use umbra::process::Profile;
 
@@ -34,6 +33,9 @@ enum Command {
         /// Gerber or drill files, folders, or .zip archives
         #[arg(required = true)]
         inputs: Vec<PathBuf>,
+        /// Process profile (TOML); only its [input_limits] matter here
+        #[arg(long)]
+        profile: Option<PathBuf>,
         /// Print the report as JSON
         #[arg(long)]
         json: bool,
@@ -181,9 +183,14 @@ fn default_board_name(inputs: &[PathBuf]) -> String {
 }
 
 fn run(cli: Cli) -> Result<ExitCode, String> {
-    let limits = Limits::default();
     match cli.command {
-        Command::Inspect { inputs, json, dump } => {
+        Command::Inspect {
+            inputs,
+            profile,
+            json,
+            dump,
+        } => {
+            let limits = read_profile(profile.as_deref())?.input_limits;
             let board = load::load_paths(&inputs, &limits).map_err(|e| e.to_string())?;
             if dump {
                 for f in &board.files {
@@ -205,8 +212,8 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
             }
             Ok(ExitCode::SUCCESS)
         }
-        Command::Films(a) => films(a, &limits),
-        Command::Render(a) => render(a, &limits),
+        Command::Films(a) => films(a),
+        Command::Render(a) => render(a),
         Command::Profile(ProfileCommand::Init { file, force }) => {
             if file.exists() && !force {
                 return Err(format!(
@@ -230,8 +237,9 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
     }
 }
 
-fn films(a: FilmsArgs, limits: &Limits) -> Result<ExitCode, String> {
+fn films(a: FilmsArgs) -> Result<ExitCode, String> {
     let profile = read_profile(a.profile.as_deref())?;
+    let limits = &profile.input_limits;
     // Refuse an existing output folder before doing any work.
     if a.out.exists() && !a.force {
         return Err(format!(
@@ -301,8 +309,9 @@ fn films(a: FilmsArgs, limits: &Limits) -> Result<ExitCode, String> {
     Ok(ExitCode::SUCCESS)
 }
 
-fn render(a: RenderArgs, limits: &Limits) -> Result<ExitCode, String> {
+fn render(a: RenderArgs) -> Result<ExitCode, String> {
     let mut profile = read_profile(a.profile.as_deref())?;
+    let limits = &profile.input_limits.clone();
     if let Some(d) = a.dpi {
         profile.printer.dpi = d;
     }

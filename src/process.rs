@@ -177,6 +177,9 @@ pub struct Profile {
     pub films: FilmsSection,
     pub sheet: crate::sheet::SheetSpec,
     pub artwork: crate::film::compose::ArtworkOptions,
+    /// Caps on the work one input may cause (file size, objects, step-repeat, nesting,
+    /// pixels per film).
+    pub input_limits: crate::limits::Limits,
 }
 
 /// A profile that could not be used.

@@ -427,7 +427,8 @@ fn copper_ring(
             let dx = (x as f64 + 0.5 - cx) / sx;
             let dy = (y as f64 + 0.5 - cy) / sy;
             let d = dx.hypot(dy);
-            if d <= need && d < nearest && !inside(x, y) {
+            // Inside the hole nothing counts: some programs draw pads with their hole.
+            if d >= hole_r && d <= need && d < nearest && !inside(x, y) {
                 nearest = d;
             }
         }

@@ -11,7 +11,7 @@ use crate::load::{Board, Content};
 use crate::output::pdf::{PageSize, PdfPage, PlacedImage};
 use crate::process::{plan, FilmRecipe, FilmsSection, Profile};
 use crate::raster::{render, Affine, Bitmap, DeviceMap};
-use crate::sheet::{self, FilmRequest, Layout};
+use crate::sheet::{self, FilmRequest, Layout, Orientation};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 
@@ -409,11 +409,38 @@ pub fn lay_out(films: &[MadeFilm], profile: &Profile) -> Result<Layout, FilmsErr
         })
         .collect();
     let mut spec = profile.sheet.clone();
-    // Room above every piece for its caption (see CAPTION_MM).
-    spec.margins.top_mm += CAPTION_MM;
-    spec.margins.left_mm = spec.margins.left_mm.max(0.0);
     spec.gap_mm = spec.gap_mm.max(CAPTION_MM + 1.0);
-    sheet::layout(&requests, &spec).map_err(|e| FilmsError::Layout(e.to_string()))
+    // Room above every piece for its caption (see CAPTION_MM), below the edge that is the top
+    // of the page as laid out: the portrait top edge, or in landscape the portrait left or
+    // right edge (drivers turn a landscape page either way; see sheet::Margins::for_orientation).
+    // The orientation is therefore chosen here, by the rule of sheet::layout for `auto`:
+    // fewer sheets, then fewer tiles, then portrait.
+    let oriented = |landscape: bool| {
+        let mut s = spec.clone();
+        if landscape {
+            s.orientation = Orientation::Landscape;
+            s.margins.left_mm += CAPTION_MM;
+            s.margins.right_mm += CAPTION_MM;
+        } else {
+            s.orientation = Orientation::Portrait;
+            s.margins.top_mm += CAPTION_MM;
+        }
+        sheet::layout(&requests, &s)
+    };
+    let chosen = match spec.orientation {
+        Orientation::Portrait => oriented(false),
+        Orientation::Landscape => oriented(true),
+        Orientation::Auto => match (oriented(false), oriented(true)) {
+            (Ok(p), Ok(l)) => {
+                let fewer = (l.sheets.len(), l.tile_count()) < (p.sheets.len(), p.tile_count());
+                Ok(if fewer { l } else { p })
+            }
+            (Ok(p), Err(_)) => Ok(p),
+            (Err(_), Ok(l)) => Ok(l),
+            (Err(e), Err(_)) => Err(e),
+        },
+    };
+    chosen.map_err(|e| FilmsError::Layout(e.to_string()))
 }
 
 /// ORs `n` bits of `src` starting at bit `sx` into `dst` starting at bit `dx`

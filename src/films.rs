@@ -287,6 +287,7 @@ pub struct Summary {
 /// Height reserved above every piece on a sheet for its caption, mm.
 const CAPTION_MM: f64 = 3.5;
 const CAPTION_CAP_MM: f64 = 1.6;
+const CAPTION_PEN_MM: f64 = 0.16;
 
 /// Decides and renders every film of the board.
 pub fn make_films(
@@ -585,9 +586,11 @@ pub fn compose_sheet(
         let text = caption(film, p.copy, profile.films.copies, p.tile.as_ref());
         captions.extend(crate::film::font::text_shapes(
             &text,
-            Point::new(p.x_mm, p.y_mm + p.height_mm + 1.0),
+            // Half a pen in from the piece's left edge: a round pen centred on the piece's
+            // edge would reach into the unprintable margin when the piece touches it.
+            Point::new(p.x_mm + CAPTION_PEN_MM / 2.0, p.y_mm + p.height_mm + 1.0),
             CAPTION_CAP_MM,
-            0.16,
+            CAPTION_PEN_MM,
             false,
             0.0,
         ));

@@ -180,9 +180,8 @@ impl Sheet {
         n
     }
 
-    /// Every black pixel (x, y), row by row; skips clear bytes quickly.
-    pub fn black_pixels(&self) -> Vec<(usize, usize)> {
-        let mut v = Vec::new();
+    /// Calls `visit` with every black pixel (x, y), row by row; skips clear bytes quickly.
+    pub fn for_each_black(&self, mut visit: impl FnMut(usize, usize)) {
         for y in 0..self.height {
             let row = &self.data[y * self.stride..(y + 1) * self.stride];
             for (i, &byte) in row.iter().enumerate() {
@@ -192,12 +191,11 @@ impl Sheet {
                 for bit in 0..8 {
                     let x = i * 8 + bit;
                     if x < self.width && byte & (0x80 >> bit) == 0 {
-                        v.push((x, y));
+                        visit(x, y);
                     }
                 }
             }
         }
-        v
     }
 }
 
@@ -375,4 +373,64 @@ pub fn manifest_targets(m: &Value) -> Vec<(f64, f64)> {
         .iter()
         .map(|p| (f(&p["x"]), f(&p["y"])))
         .collect()
+}
+
+/// Pixel differences between a sheet region and `shapes` (in sheet mm: origin at the sheet's
+/// lower-left corner, y up, as docs/sheets.md) drawn by the library's rasterizer, allowing a
+/// shift of up to `slack` pixels; and the drawn shapes' black pixel count. The region is the
+/// pixel rectangle [i0, i1) × [j0, j1).
+pub fn text_difference(
+    sheet: &Sheet,
+    dpi: f64,
+    shapes: Vec<umbra::image::Shape>,
+    region: (i64, i64, i64, i64),
+    slack: i64,
+) -> (u64, u64) {
+    let (i0, j0, i1, j1) = region;
+    let s = dpi / MM_PER_INCH;
+    let (w, h) = ((i1 - i0) as usize, (j1 - j0) as usize);
+    // Sheet pixel row j has its centre at y = (height − j − 0.5) / s mm.
+    let map = umbra::raster::DeviceMap::new(
+        umbra::image::Point::new(i0 as f64 / s, (sheet.height as f64 - j1 as f64) / s),
+        w,
+        h,
+        dpi,
+        dpi,
+    );
+    let objs: Vec<umbra::image::Object> = shapes
+        .into_iter()
+        .map(|shape| umbra::image::Object {
+            polarity: umbra::image::Polarity::Dark,
+            shape,
+        })
+        .collect();
+    let drawn = umbra::raster::render(&objs, &map);
+    let mut best = u64::MAX;
+    for dy in -slack..=slack {
+        for dx in -slack..=slack {
+            let mut n = 0;
+            for y in 0..h {
+                for x in 0..w {
+                    let on_sheet = sheet.black(i0 + x as i64 + dx, j0 + y as i64 + dy);
+                    n += u64::from(on_sheet != drawn.get(x, y));
+                }
+            }
+            best = best.min(n);
+        }
+    }
+    (best, drawn.count_ones())
+}
+
+/// The printable rectangle of a sheet (mm, origin lower-left) for margins given with the sheet
+/// held in portrait (docs/sheets.md "Printable area": in landscape, top and bottom take
+/// max(left, right), left and right take max(top, bottom)).
+pub fn printable_mm(size_mm: (f64, f64), top: f64, right: f64, bottom: f64, left: f64) -> [f64; 4] {
+    let (w, h) = size_mm;
+    if w > h {
+        let tb = left.max(right);
+        let lr = top.max(bottom);
+        [lr, tb, w - lr, h - tb]
+    } else {
+        [left, bottom, w - right, h - top]
+    }
 }

@@ -122,7 +122,7 @@ pub fn select<'a>(
             .filter_map(|(f, id)| id.map(|id| format!("{} ({id})", f.base_name)))
             .collect();
         return Err(FilmsError::Input(if found.is_empty() {
-            "no Gerber layers were found in the input".to_string()
+            no_layers_message(board)
         } else {
             format!(
                 "none of the layers found is one umbra makes films of with this profile: {}",
@@ -131,6 +131,51 @@ pub fn select<'a>(
         }));
     }
     Ok(out)
+}
+
+/// Why nothing could be identified as a layer, naming the files that were read.
+fn no_layers_message(board: &Board) -> String {
+    const SHOWN: usize = 8;
+    let unknown: Vec<&str> = board
+        .files
+        .iter()
+        .filter(|f| matches!(f.content, Content::Gerber(_)))
+        .map(|f| f.name.as_str())
+        .collect();
+    if !unknown.is_empty() {
+        let (which, are) = if unknown.len() == 1 {
+            ("layer the Gerber file", "is")
+        } else {
+            ("layers the Gerber files", "are")
+        };
+        return format!(
+            "umbra cannot tell which {which} {} {are}; name the layers in a job file (*{}: [[files]] name = \"…\", layer = \"copper top\")",
+            list_of(&unknown, SHOWN),
+            crate::job::JOB_FILE_SUFFIX
+        );
+    }
+    let read: Vec<&str> = board.files.iter().map(|f| f.name.as_str()).collect();
+    if read.is_empty() {
+        return "no Gerber layers were found in the input (no files were read)".to_string();
+    }
+    format!(
+        "no Gerber layers were found in the input; the files read are not Gerber data: {}",
+        list_of(&read, SHOWN)
+    )
+}
+
+/// "a, b, c and 4 more".
+fn list_of(names: &[&str], shown: usize) -> String {
+    let mut s = names
+        .iter()
+        .take(shown)
+        .copied()
+        .collect::<Vec<_>>()
+        .join(", ");
+    if names.len() > shown {
+        s.push_str(&format!(" and {} more", names.len() - shown));
+    }
+    s
 }
 
 /// How far beyond the copper an outline layer's extents are believed, mm.

@@ -489,3 +489,31 @@ fn long_board_tiles_cover_the_film_with_the_configured_overlap() {
         }
     }
 }
+
+#[test]
+fn every_real_board_sheet_keeps_pieces_and_captions_in_place() {
+    let Some(root) = corpus() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    write_profile(dir.path(), "p.toml", "[printer]\ndpi = 300\n");
+    for (i, board) in corpus_boards(&root).iter().enumerate() {
+        let out = format!("out-{i:02}");
+        films_ok(
+            dir.path(),
+            &[board.to_str().unwrap(), "-o", &out, "--profile", "p.toml"],
+        );
+        let out = dir.path().join(out);
+        let m = manifest(&out);
+        let pieces: usize = m["films"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|f| f["placements"].as_array().unwrap().len())
+            .sum();
+        assert_eq!(
+            check_sheets(&out, &m, &default_rules(300.0)),
+            pieces,
+            "{}",
+            board.display()
+        );
+    }
+}

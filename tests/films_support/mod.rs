@@ -353,11 +353,14 @@ pub fn permutations(n: usize) -> Vec<Vec<usize>> {
     out
 }
 
+/// A map of the plane, mm to mm.
+pub type PlaneMap = fn((f64, f64)) -> (f64, f64);
+
 /// The three rigid mistakes a film can be laid with: mirrored left-right (x → −x), mirrored
 /// top-bottom (y → −y) and turned half round; each is followed by the best translation in
 /// [`self_fit_misfit`], so a mirror about *any* vertical (or horizontal) line and a half-turn
 /// about *any* point are covered.
-pub fn wrong_placements() -> Vec<(&'static str, fn((f64, f64)) -> (f64, f64))> {
+pub fn wrong_placements() -> Vec<(&'static str, PlaneMap)> {
     vec![
         ("mirror x -> -x", |(x, y)| (-x, y)),
         ("mirror y -> -y", |(x, y)| (x, -y)),

@@ -517,3 +517,76 @@ fn every_real_board_sheet_keeps_pieces_and_captions_in_place() {
         );
     }
 }
+
+/// A PGM (P5, netpbm) image with 8-bit samples: width, height, samples.
+fn read_pgm(bytes: &[u8]) -> (usize, usize, Vec<u8>) {
+    let mut fields = Vec::new();
+    let mut i = 0;
+    while fields.len() < 4 {
+        while bytes[i].is_ascii_whitespace() {
+            i += 1;
+        }
+        if bytes[i] == b'#' {
+            while bytes[i] != b'\n' {
+                i += 1;
+            }
+            continue;
+        }
+        let start = i;
+        while !bytes[i].is_ascii_whitespace() {
+            i += 1;
+        }
+        fields.push(String::from_utf8_lossy(&bytes[start..i]).to_string());
+    }
+    assert_eq!(fields[0], "P5");
+    assert_eq!(fields[3], "255");
+    (
+        fields[1].parse().unwrap(),
+        fields[2].parse().unwrap(),
+        bytes[i + 1..].to_vec(),
+    )
+}
+
+#[test]
+fn pdf_page_prints_the_films_at_actual_size() {
+    // Rasterize the PDF page with poppler's pdftoppm (Debian poppler-utils) at the sheet's own
+    // resolution: if the page image is placed at 100 % (1 px = 1/dpi in; ISO 32000-1 §8.3.2.1)
+    // every registration target lands where the manifest puts it on the sheet, within a pixel.
+    if !have_tool("pdftoppm") {
+        eprintln!("skipping: pdftoppm (poppler-utils) is not installed");
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let m = demo_run(dir.path(), "[printer]\ndpi = 300\n");
+    let out = dir.path().join("out");
+    let st = std::process::Command::new("pdftoppm")
+        .args(["-r", "300", "-gray", "-f", "1", "-l", "1"])
+        .arg(out.join("films.pdf"))
+        .arg(dir.path().join("page"))
+        .status()
+        .unwrap();
+    assert!(st.success());
+    let pgm = names_starting(dir.path(), "page");
+    assert_eq!(pgm.len(), 1, "{pgm:?}");
+    let (w, h, gray) = read_pgm(&std::fs::read(dir.path().join(&pgm[0])).unwrap());
+    let page = Sheet::from_gray(w, h, &gray);
+    let sheet = Sheet::load(&out.join("sheet-01.png"));
+    // pdftoppm rounds the page's pixel size up (210 mm at 300 dpi is 2480.3 px).
+    assert!(w.abs_diff(sheet.width) <= 1 && h.abs_diff(sheet.height) <= 1);
+    let s = 300.0 / MM_PER_INCH;
+    let mut found = 0;
+    for film in m["films"].as_array().unwrap() {
+        let a = Affine::of(&film["placements"][0]["board_to_sheet_px"]);
+        for (tx, ty) in manifest_targets(&m) {
+            let want = a.apply(tx, ty);
+            let got = mark_centre(&page, want, 0.55 * 5.0 * s);
+            assert!(
+                (got.0 - want.0).abs() <= 1.0 && (got.1 - want.1).abs() <= 1.0,
+                "{}: target ({tx}, {ty}) on the PDF page at {got:?}, on the sheet at {want:?}",
+                film["key"]
+            );
+            found += 1;
+        }
+    }
+    assert_eq!(found, 12);
+}

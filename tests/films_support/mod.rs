@@ -155,6 +155,27 @@ impl Sheet {
         }
     }
 
+    /// A sheet from 8-bit grey pixels, black below half grey (e.g. a page rasterized by
+    /// another program).
+    pub fn from_gray(width: usize, height: usize, gray: &[u8]) -> Sheet {
+        let stride = width.div_ceil(8);
+        let mut data = vec![0xffu8; stride * height];
+        for y in 0..height {
+            for x in 0..width {
+                if gray[y * width + x] < 128 {
+                    data[y * stride + x / 8] &= !(0x80 >> (x % 8));
+                }
+            }
+        }
+        Sheet {
+            width,
+            height,
+            stride,
+            data,
+            ppm: None,
+        }
+    }
+
     /// Whether pixel (x, y) (y down) is black; outside the sheet is clear.
     pub fn black(&self, x: i64, y: i64) -> bool {
         if x < 0 || y < 0 || x as usize >= self.width || y as usize >= self.height {

@@ -728,7 +728,11 @@ impl StagedDir {
     pub fn commit(mut self) -> Result<(), FilmsError> {
         let err = |p: &Path, e: std::io::Error| FilmsError::Output(format!("{}: {e}", p.display()));
         if self.dest.exists() {
-            let old = self.temp.with_extension("old");
+            // A name of this run's own: a fixed name could belong to an earlier, interrupted
+            // run (or to the user), and renaming onto a non-empty folder fails.
+            let mut old_name = self.temp.as_os_str().to_owned();
+            old_name.push(".old");
+            let old = PathBuf::from(old_name);
             std::fs::rename(&self.dest, &old).map_err(|e| err(&self.dest, e))?;
             std::fs::rename(&self.temp, &self.dest).map_err(|e| err(&self.dest, e))?;
             let _ = std::fs::remove_dir_all(&old);

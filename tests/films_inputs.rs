@@ -248,3 +248,26 @@ fn a_gerber_of_unknown_layer_is_named_in_the_refusal() {
         &["mystery.gbr", "layer", "job file"],
     );
 }
+
+#[test]
+fn force_replaces_the_output_despite_a_leftover_folder_of_an_earlier_run() {
+    // An earlier run interrupted while replacing its output could leave a folder beside it;
+    // --force must still work, and must not touch a folder it did not make.
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::create_dir(dir.path().join("out")).unwrap();
+    std::fs::create_dir(dir.path().join(".out.old")).unwrap();
+    std::fs::write(dir.path().join(".out.old/mine.txt"), "not umbra's").unwrap();
+    films_ok(
+        dir.path(),
+        &[demo_dir().to_str().unwrap(), "-o", "out", "--force"],
+    );
+    assert!(dir.path().join("out/manifest.json").is_file());
+    assert_eq!(
+        std::fs::read_to_string(dir.path().join(".out.old/mine.txt")).unwrap(),
+        "not umbra's"
+    );
+    assert_eq!(
+        names_starting(dir.path(), ".out"),
+        vec![".out.old".to_string()]
+    );
+}

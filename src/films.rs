@@ -11,7 +11,7 @@ use crate::load::{Board, Content};
 use crate::output::pdf::{PageSize, PdfPage, PlacedImage};
 use crate::process::{plan, FilmRecipe, FilmsSection, Profile};
 use crate::raster::{render, Affine, Bitmap, DeviceMap};
-use crate::sheet::{self, FilmRequest, Layout};
+use crate::sheet::{self, FilmRequest, Layout, Orientation};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 
@@ -122,7 +122,7 @@ pub fn select<'a>(
             .filter_map(|(f, id)| id.map(|id| format!("{} ({id})", f.base_name)))
             .collect();
         return Err(FilmsError::Input(if found.is_empty() {
-            "no Gerber layers were found in the input".to_string()
+            no_layers_message(board)
         } else {
             format!(
                 "none of the layers found is one umbra makes films of with this profile: {}",
@@ -131,6 +131,51 @@ pub fn select<'a>(
         }));
     }
     Ok(out)
+}
+
+/// Why nothing could be identified as a layer, naming the files that were read.
+fn no_layers_message(board: &Board) -> String {
+    const SHOWN: usize = 8;
+    let unknown: Vec<&str> = board
+        .files
+        .iter()
+        .filter(|f| matches!(f.content, Content::Gerber(_)))
+        .map(|f| f.name.as_str())
+        .collect();
+    if !unknown.is_empty() {
+        let (which, are) = if unknown.len() == 1 {
+            ("layer the Gerber file", "is")
+        } else {
+            ("layers the Gerber files", "are")
+        };
+        return format!(
+            "umbra cannot tell which {which} {} {are}; name the layers in a job file (*{}: [[files]] name = \"…\", layer = \"copper top\")",
+            list_of(&unknown, SHOWN),
+            crate::job::JOB_FILE_SUFFIX
+        );
+    }
+    let read: Vec<&str> = board.files.iter().map(|f| f.name.as_str()).collect();
+    if read.is_empty() {
+        return "no Gerber layers were found in the input (no files were read)".to_string();
+    }
+    format!(
+        "no Gerber layers were found in the input; the files read are not Gerber data: {}",
+        list_of(&read, SHOWN)
+    )
+}
+
+/// "a, b, c and 4 more".
+fn list_of(names: &[&str], shown: usize) -> String {
+    let mut s = names
+        .iter()
+        .take(shown)
+        .copied()
+        .collect::<Vec<_>>()
+        .join(", ");
+    if names.len() > shown {
+        s.push_str(&format!(" and {} more", names.len() - shown));
+    }
+    s
 }
 
 /// How far beyond the copper an outline layer's extents are believed, mm.
@@ -287,6 +332,7 @@ pub struct Summary {
 /// Height reserved above every piece on a sheet for its caption, mm.
 const CAPTION_MM: f64 = 3.5;
 const CAPTION_CAP_MM: f64 = 1.6;
+const CAPTION_PEN_MM: f64 = 0.16;
 
 /// Decides and renders every film of the board.
 pub fn make_films(
@@ -409,11 +455,38 @@ pub fn lay_out(films: &[MadeFilm], profile: &Profile) -> Result<Layout, FilmsErr
         })
         .collect();
     let mut spec = profile.sheet.clone();
-    // Room above every piece for its caption (see CAPTION_MM).
-    spec.margins.top_mm += CAPTION_MM;
-    spec.margins.left_mm = spec.margins.left_mm.max(0.0);
     spec.gap_mm = spec.gap_mm.max(CAPTION_MM + 1.0);
-    sheet::layout(&requests, &spec).map_err(|e| FilmsError::Layout(e.to_string()))
+    // Room above every piece for its caption (see CAPTION_MM), below the edge that is the top
+    // of the page as laid out: the portrait top edge, or in landscape the portrait left or
+    // right edge (drivers turn a landscape page either way; see sheet::Margins::for_orientation).
+    // The orientation is therefore chosen here, by the rule of sheet::layout for `auto`:
+    // fewer sheets, then fewer tiles, then portrait.
+    let oriented = |landscape: bool| {
+        let mut s = spec.clone();
+        if landscape {
+            s.orientation = Orientation::Landscape;
+            s.margins.left_mm += CAPTION_MM;
+            s.margins.right_mm += CAPTION_MM;
+        } else {
+            s.orientation = Orientation::Portrait;
+            s.margins.top_mm += CAPTION_MM;
+        }
+        sheet::layout(&requests, &s)
+    };
+    let chosen = match spec.orientation {
+        Orientation::Portrait => oriented(false),
+        Orientation::Landscape => oriented(true),
+        Orientation::Auto => match (oriented(false), oriented(true)) {
+            (Ok(p), Ok(l)) => {
+                let fewer = (l.sheets.len(), l.tile_count()) < (p.sheets.len(), p.tile_count());
+                Ok(if fewer { l } else { p })
+            }
+            (Ok(p), Err(_)) => Ok(p),
+            (Err(_), Ok(l)) => Ok(l),
+            (Err(e), Err(_)) => Err(e),
+        },
+    };
+    chosen.map_err(|e| FilmsError::Layout(e.to_string()))
 }
 
 /// ORs `n` bits of `src` starting at bit `sx` into `dst` starting at bit `dx`
@@ -558,9 +631,11 @@ pub fn compose_sheet(
         let text = caption(film, p.copy, profile.films.copies, p.tile.as_ref());
         captions.extend(crate::film::font::text_shapes(
             &text,
-            Point::new(p.x_mm, p.y_mm + p.height_mm + 1.0),
+            // Half a pen in from the piece's left edge: a round pen centred on the piece's
+            // edge would reach into the unprintable margin when the piece touches it.
+            Point::new(p.x_mm + CAPTION_PEN_MM / 2.0, p.y_mm + p.height_mm + 1.0),
             CAPTION_CAP_MM,
-            0.16,
+            CAPTION_PEN_MM,
             false,
             0.0,
         ));
@@ -653,7 +728,11 @@ impl StagedDir {
     pub fn commit(mut self) -> Result<(), FilmsError> {
         let err = |p: &Path, e: std::io::Error| FilmsError::Output(format!("{}: {e}", p.display()));
         if self.dest.exists() {
-            let old = self.temp.with_extension("old");
+            // A name of this run's own: a fixed name could belong to an earlier, interrupted
+            // run (or to the user), and renaming onto a non-empty folder fails.
+            let mut old_name = self.temp.as_os_str().to_owned();
+            old_name.push(".old");
+            let old = PathBuf::from(old_name);
             std::fs::rename(&self.dest, &old).map_err(|e| err(&self.dest, e))?;
             std::fs::rename(&self.temp, &self.dest).map_err(|e| err(&self.dest, e))?;
             let _ = std::fs::remove_dir_all(&old);

@@ -395,7 +395,16 @@ pub fn make_films(
         .iter()
         .map(|p| marks::label_size_mm(&p.2, profile.artwork.label_cap_mm))
         .fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
-    let frame = BoardFrame::new(extents, label_size, &profile.artwork);
+    let indicator_size = plans
+        .iter()
+        .map(|p| {
+            marks::side_indicator_size_mm(
+                face(p.0.id.side),
+                profile.artwork.label_cap_mm * compose::INDICATOR_CAPS,
+            )
+        })
+        .fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
+    let frame = BoardFrame::new(extents, label_size, indicator_size, &profile.artwork);
 
     let mut made = Vec::new();
     for (s, recipe, lines, label_mirrored) in plans {
@@ -412,6 +421,8 @@ pub fn make_films(
             frame: &frame,
             label: lines,
             label_mirrored,
+            face: Some(face(s.id.side)),
+            stack_targets: profile.films.copies > 1,
             opts: &profile.artwork,
         };
         let map = compose::film_map(&frame, &recipe);

@@ -370,7 +370,8 @@ fn render(a: RenderArgs) -> Result<ExitCode, String> {
         label: false,
         ..Default::default()
     };
-    let frame = umbra::film::compose::BoardFrame::new(g.image.bounds(), (0.0, 0.0), &art);
+    let frame =
+        umbra::film::compose::BoardFrame::new(g.image.bounds(), (0.0, 0.0), (0.0, 0.0), &art);
     if frame.board.is_empty() {
         return Err(format!("{}: the layer draws nothing", a.file.display()));
     }
@@ -381,6 +382,8 @@ fn render(a: RenderArgs) -> Result<ExitCode, String> {
         frame: &frame,
         label: Vec::new(),
         label_mirrored: false,
+        face: None,
+        stack_targets: false,
         opts: &art,
     };
     let film = umbra::film::compose::render_film(&job, profile.drill_marks.min_annular_ring_mm);

@@ -66,14 +66,21 @@ pub struct BoardFrame {
     pub targets: Option<[Point; 3]>,
     /// Lower-left corner of the label block, board mm.
     pub label_anchor: Point,
+    /// Lower-left corner of the side indicator (TOP/BOT and a boxed F), right of the label.
+    pub indicator_anchor: Point,
     /// The film's area in board mm: everything above plus the border.
     pub film: Bounds,
 }
 
 impl BoardFrame {
     /// Plans the frame for a board of extents `board` whose largest label block is
-    /// `label_size` (w, h) mm.
-    pub fn new(board: Bounds, label_size: (f64, f64), opts: &ArtworkOptions) -> BoardFrame {
+    /// `label_size` (w, h) mm and whose side indicator is `indicator_size` (w, h) mm.
+    pub fn new(
+        board: Bounds,
+        label_size: (f64, f64),
+        indicator_size: (f64, f64),
+        opts: &ArtworkOptions,
+    ) -> BoardFrame {
         let mut all = board;
         let targets = opts.registration.then(|| {
             let t = marks::registration_targets(board, opts.target_margin_mm, opts.target_size_mm);
@@ -82,20 +89,33 @@ impl BoardFrame {
             }
             t
         });
-        // The label goes below everything drawn so far, left-aligned.
+        // The label goes below everything drawn so far, left-aligned; the side indicator
+        // to its right, level with the label's first line.
         let gap = if opts.label { 1.5 } else { 0.0 };
         let label_anchor = Point::new(all.min_x, all.min_y - gap - label_size.1);
+        let indicator_anchor = Point::new(
+            label_anchor.x + label_size.0 + 3.0,
+            label_anchor.y + label_size.1 - indicator_size.1,
+        );
         if opts.label && label_size.0 > 0.0 {
             all.add_point(label_anchor);
             all.add_point(Point::new(
                 label_anchor.x + label_size.0,
                 label_anchor.y + label_size.1,
             ));
+            if indicator_size.0 > 0.0 {
+                all.add_point(indicator_anchor);
+                all.add_point(Point::new(
+                    indicator_anchor.x + indicator_size.0,
+                    indicator_anchor.y + indicator_size.1,
+                ));
+            }
         }
         BoardFrame {
             board,
             targets,
             label_anchor,
+            indicator_anchor,
             film: all.grown(opts.border_mm),
         }
     }
@@ -111,6 +131,10 @@ pub struct FilmJob<'a> {
     /// Label lines (already decided by the caller, including the realized offset).
     pub label: Vec<String>,
     pub label_mirrored: bool,
+    /// The side indicator to draw beside the label (None: none).
+    pub face: Option<marks::BoardFace>,
+    /// Draw stacking targets (for films printed in several copies and stacked).
+    pub stack_targets: bool,
     pub opts: &'a ArtworkOptions,
 }
 
@@ -185,7 +209,11 @@ fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
     let mut shapes = Vec::new();
     if let Some(t) = &job.frame.targets {
         for p in t {
-            shapes.extend(marks::target_shapes(*p, o.target_size_mm, o.line_mm));
+            shapes.extend(if job.stack_targets {
+                marks::stack_target_shapes(*p, o.target_size_mm, o.line_mm)
+            } else {
+                marks::target_shapes(*p, o.target_size_mm, o.line_mm)
+            });
         }
     }
     if o.label && !job.label.is_empty() {
@@ -195,6 +223,14 @@ fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
             o.label_cap_mm,
             job.label_mirrored,
         ));
+        if let Some(face) = job.face {
+            shapes.extend(marks::side_indicator_shapes(
+                face,
+                job.frame.indicator_anchor,
+                o.label_cap_mm * INDICATOR_CAPS,
+                job.label_mirrored,
+            ));
+        }
     }
     if o.frame {
         shapes.extend(marks::frame_shapes(
@@ -204,6 +240,9 @@ fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
     }
     shapes
 }
+
+/// The side indicator's cap height in label cap heights: large enough to see at arm's length.
+pub const INDICATOR_CAPS: f64 = 2.0;
 
 /// A film rendered at device resolution: bit 1 = black (opaque).
 #[derive(Debug, Clone)]

@@ -44,6 +44,9 @@ enum Command {
     /// Process profiles
     #[command(subcommand)]
     Profile(ProfileCommand),
+    /// Calibrate printer and process: print a test sheet, then solve the profile from it
+    #[command(subcommand)]
+    Calibrate(umbra::calibrate::cli::CalibrateCommand),
 }
 
 #[derive(Subcommand, Debug)]
@@ -207,6 +210,9 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
         }
         Command::Films(a) => films(a, &limits),
         Command::Render(a) => render(a, &limits),
+        Command::Calibrate(c) => {
+            umbra::calibrate::cli::run(c, &today()).map(|()| ExitCode::SUCCESS)
+        }
         Command::Profile(ProfileCommand::Init { file, force }) => {
             if file.exists() && !force {
                 return Err(format!(

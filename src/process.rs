@@ -177,6 +177,8 @@ pub struct Profile {
     pub films: FilmsSection,
     pub sheet: crate::sheet::SheetSpec,
     pub artwork: crate::film::compose::ArtworkOptions,
+    /// The exposure strip's range and the solved exposure time (`umbra calibrate`).
+    pub exposure: crate::calibrate::ExposureSection,
 }
 
 /// A profile that could not be used.

@@ -29,7 +29,7 @@ const STAR_RADIUS_MM: f64 = 8.0;
 
 /// Distinct whole-dot widths near the targets, widest first, at least one dot.
 fn group_widths_dots(dpi: f64) -> Vec<i64> {
-    let dot_um = MM_PER_INCH * 1000.0 / dpi;
+    let dot_um = super::dot_um(dpi);
     let mut out: Vec<i64> = Vec::new();
     for t in GROUP_TARGETS_UM {
         let d = ((t / dot_um).round() as i64).max(1);
@@ -250,7 +250,7 @@ pub(crate) fn draw_strip(
         let x = o.x + sw * k as f64;
         c.vline_px(x, o.y, top + STRIP_TICK_MM, tx, true);
     }
-    let dot_um_x = MM_PER_INCH * 1000.0 / c.map.dpi_x;
+    let dot_um_x = super::dot_um(c.map.dpi_x);
     let line_dots: Vec<i64> = STRIP_LINES_UM
         .iter()
         .map(|u| ((u / dot_um_x).round() as i64).max(1))

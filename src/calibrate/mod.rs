@@ -54,6 +54,11 @@ impl Default for ExposureSection {
     }
 }
 
+/// One device dot in µm: 25 400 µm per inch (the inch is 25.4 mm exactly).
+pub fn dot_um(dpi: f64) -> f64 {
+    25_400.0 / dpi
+}
+
 /// Most segments a strip may have: more would make each too narrow to cover by hand.
 pub const MAX_SEGMENTS: u32 = 12;
 /// Longest exposure the strip may span, seconds (one hour).

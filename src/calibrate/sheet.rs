@@ -22,7 +22,7 @@
 
 use super::draw::{Align, Canvas};
 use super::features;
-use super::{CalibrateError, ScheduleStep};
+use super::{dot_um, CalibrateError, ScheduleStep};
 use crate::image::{Bounds, Object, Point};
 use crate::output::pdf::{PageSize, PdfPage, PlacedImage};
 use crate::process::{PrintedSide, Profile};
@@ -270,17 +270,13 @@ fn draw_ruler(c: &mut Canvas, r: &Ruler) {
 /// Number of ladder rungs (1 to n dots) for a resolution: enough to reach 200 µm, at least
 /// 8 and at most 16.
 pub fn rung_count(dpi: f64) -> u32 {
-    let dot_um = MM_PER_INCH * 1000.0 / dpi;
-    ((LADDER_REACH_UM / dot_um).ceil() as u32).clamp(MIN_RUNGS, MAX_RUNGS)
+    ((LADDER_REACH_UM / dot_um(dpi)).ceil() as u32).clamp(MIN_RUNGS, MAX_RUNGS)
 }
 
 /// Width in µm of `dots` dots at `dpi`, as printed on the labels (whole µm).
+/// (Halves round up: 3 dots at 1200 dpi are 63.5 µm, labelled 64.)
 pub fn dots_um_label(dots: u32, dpi: f64) -> String {
-    format!("{:.0}", dots as f64 * MM_PER_INCH * 1000.0 / dpi)
-}
-
-fn dot_um(dpi: f64) -> f64 {
-    MM_PER_INCH * 1000.0 / dpi
+    format!("{:.0}", (dots as f64 * dot_um(dpi)).round())
 }
 
 fn ladder_x_title(kind: RungKind, dpi: f64) -> String {

@@ -16,7 +16,6 @@
 use super::sheet::{self, Ruler};
 use super::{format_time, CalibrateError};
 use crate::process::Profile;
-use crate::raster::MM_PER_INCH;
 use serde::Serialize;
 
 /// A ladder reading for both axes, or one per axis (`"3"` or `"3,4"` on the command line).
@@ -123,7 +122,7 @@ pub fn scale_factor(old: f64, nominal_mm: f64, measured_mm: f64) -> f64 {
 /// Toner spread per edge (µm) from the narrowest open gap of `gap_dots` at `dpi`: the middle
 /// of `[(g − 1)·d/2, g·d/2)`.
 pub fn spread_from_open_gap(gap_dots: u32, dpi: f64) -> f64 {
-    let d = MM_PER_INCH * 1000.0 / dpi;
+    let d = super::dot_um(dpi);
     (gap_dots as f64 - 0.5) * d / 2.0
 }
 
@@ -220,7 +219,7 @@ pub fn solve(profile: &Profile, r: &Readings) -> Result<Solution, CalibrateError
         check_rung("--open-gap", g.y, dpi_y)?;
         let mut estimates = Vec::new();
         for (axis, gap, dpi) in [("X", g.x, dpi_x), ("Y", g.y, dpi_y)] {
-            let d = MM_PER_INCH * 1000.0 / dpi;
+            let d = super::dot_um(dpi);
             let s = spread_from_open_gap(gap, dpi);
             out.derivation.push(format!(
                 "toner spread {axis}: narrowest open gap {gap} dots × {d:.2} µm; the {} dot gap closed, so 2 × spread lies in [{:.1}, {:.1}) µm; spread ≈ ({gap} − ½) × {d:.2} / 2 = {s:.1} µm per edge (± {:.1})",
@@ -247,8 +246,8 @@ pub fn solve(profile: &Profile, r: &Readings) -> Result<Solution, CalibrateError
     if let Some(t) = r.true_line {
         check_rung("--true-line", t.x, dpi_x)?;
         check_rung("--true-line", t.y, dpi_y)?;
-        let wx = t.x as f64 * MM_PER_INCH * 1000.0 / dpi_x;
-        let wy = t.y as f64 * MM_PER_INCH * 1000.0 / dpi_y;
+        let wx = t.x as f64 * super::dot_um(dpi_x);
+        let wy = t.y as f64 * super::dot_um(dpi_y);
         out.finest_line_um = Some([wx, wy]);
         let spread = out.toner_spread_um.unwrap_or(pr.toner_spread_um);
         let finest = wx.max(wy);

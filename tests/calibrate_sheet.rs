@@ -268,23 +268,33 @@ fn exposure_strip_segments_follow_the_schedule() {
 
 #[test]
 fn small_sheets_and_landscape() {
-    // Landscape A4 and Letter fit; A5 (148 × 210 mm, ISO 216) is refused with a reason.
-    for (size, orientation) in [("A4", "landscape"), ("Letter", "portrait"), ("A3", "auto")] {
-        let mut p = Profile::default();
-        p.sheet.size = size.parse().unwrap();
-        p.sheet.orientation = orientation.parse().unwrap();
-        plan(&p);
+    // Landscape A4 and Letter fit, also at 2400 dpi (the widest ladders) with a 2 % scale.
+    for (size, orientation) in [
+        ("A4", "landscape"),
+        ("Letter", "portrait"),
+        ("Letter", "landscape"),
+        ("A3", "auto"),
+    ] {
+        for dpi in [600.0, 2400.0] {
+            let mut p = profile(dpi, None, (1.02, 1.02));
+            p.sheet.size = size.parse().unwrap();
+            p.sheet.orientation = orientation.parse().unwrap();
+            plan(&p);
+        }
     }
+    // A5 (148 × 210 mm) still fits at 1200 dpi; A6 (105 × 148 mm, ISO 216) is refused
+    // with a reason that names the sheet.
     let mut p = Profile::default();
     p.sheet.size = "A5".parse().unwrap();
-    let e = sheet::plan(
-        &p,
-        &SheetOptions {
-            date: "2026-12-02".into(),
-        },
-    )
-    .unwrap_err();
-    assert!(e.to_string().contains("A5"), "{e}");
+    plan(&p);
+    p.sheet.size = "A6".parse().unwrap();
+    let opts = SheetOptions {
+        date: "2026-12-02".into(),
+    };
+    match sheet::plan(&p, &opts) {
+        Ok(_) => panic!("A6 should not fit"),
+        Err(e) => assert!(e.to_string().contains("A6"), "{e}"),
+    }
 }
 
 fn bin() -> std::process::Command {

@@ -126,6 +126,8 @@ const TICK_MM: f64 = 0.1;
 
 /// Ladder geometry, mm.
 const RUNG_PITCH_MM: f64 = 4.5;
+/// Rungs across Y are stacked closer: their labels sit beside them, not below.
+const Y_RUNG_PITCH_MM: f64 = 3.5;
 const BAR_MM: f64 = 8.0;
 /// The ladders go up to this width (or at least 8, at most 16 rungs): toner spreads
 /// 1–1.5 dots per edge on a 1200 dpi laser (TRADE.md), so gaps up to about 4 dots may close;
@@ -340,13 +342,13 @@ fn draw_ladder_x(c: &mut Canvas, o: Point, kind: RungKind, rungs: &mut Vec<Ladde
 
 /// Size of the pair of ladders across Y (lines left, labels in the middle, gaps right).
 fn ladder_y_size(n: u32) -> (f64, f64) {
-    (30.0, n as f64 * RUNG_PITCH_MM + 6.5)
+    (30.0, n as f64 * Y_RUNG_PITCH_MM + 6.5)
 }
 
 fn draw_ladders_y(c: &mut Canvas, o: Point, rungs: &mut Vec<LadderRung>) {
     let dpi = c.map.dpi_y;
     let n = rung_count(dpi);
-    let rows_h = n as f64 * RUNG_PITCH_MM;
+    let rows_h = n as f64 * Y_RUNG_PITCH_MM;
     let top = o.y + rows_h;
     c.text("Y lines", o.x + BAR_MM / 2.0, top + 1.0, 1.5, Align::Center);
     c.text("Y gaps", o.x + 26.0, top + 1.0, 1.5, Align::Center);
@@ -364,7 +366,7 @@ fn draw_ladders_y(c: &mut Canvas, o: Point, rungs: &mut Vec<LadderRung>) {
     c.rect_px(l, t, r, b, true);
     for i in 0..n {
         let dots = i + 1;
-        let cy = top - RUNG_PITCH_MM * (i as f64 + 0.5);
+        let cy = top - Y_RUNG_PITCH_MM * (i as f64 + 0.5);
         let dots_label = dots.to_string();
         let um_label = dots_um_label(dots, dpi);
         let (t, b) = c.hline_px(cy, o.x, o.x + BAR_MM, dots as i64, true);
@@ -559,17 +561,23 @@ pub fn plan(profile: &Profile, opts: &SheetOptions) -> Result<SheetPlan, Calibra
         if w > content.width() + 1e-9 {
             return Err(too_small(profile, content));
         }
-        if x > content.min_x && x + w > content.max_x {
-            row_top -= row_h + PART_GAP_Y_MM;
-            x = content.min_x;
-            row_h = 0.0;
+        let (mut nx, mut ntop, mut nh) = (x, row_top, row_h);
+        if nx > content.min_x && nx + w > content.max_x {
+            ntop -= row_h + PART_GAP_Y_MM;
+            nx = content.min_x;
+            nh = 0.0;
         }
-        placed.push((p, Point::new(x, row_top - h), (w, h)));
-        x += w + PART_GAP_X_MM;
-        row_h = row_h.max(h);
-    }
-    if row_top - row_h < content.min_y - 1e-9 {
-        return Err(too_small(profile, content));
+        if ntop - h < content.min_y - 1e-9 {
+            // The readings box is a convenience; everything else must fit.
+            if matches!(p, Part::Readings) {
+                continue;
+            }
+            return Err(too_small(profile, content));
+        }
+        placed.push((p, Point::new(nx, ntop - h), (w, h)));
+        x = nx + w + PART_GAP_X_MM;
+        row_top = ntop;
+        row_h = nh.max(h);
     }
 
     let mut rungs = Vec::new();

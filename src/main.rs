@@ -46,6 +46,9 @@ enum Command {
     /// Process profiles
     #[command(subcommand)]
     Profile(ProfileCommand),
+    /// Calibrate printer and process: print a test sheet, then solve the profile from it
+    #[command(subcommand)]
+    Calibrate(umbra::calibrate::cli::CalibrateCommand),
 }
 
 #[derive(Subcommand, Debug)]
@@ -214,6 +217,9 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
         }
         Command::Films(a) => films(a),
         Command::Render(a) => render(a),
+        Command::Calibrate(c) => {
+            umbra::calibrate::cli::run(c, &today()).map(|()| ExitCode::SUCCESS)
+        }
         Command::Profile(ProfileCommand::Init { file, force }) => {
             if file.exists() && !force {
                 return Err(format!(

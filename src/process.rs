@@ -180,6 +180,8 @@ pub struct Profile {
     /// Caps on the work one input may cause (file size, objects, step-repeat, nesting,
     /// pixels per film).
     pub input_limits: crate::limits::Limits,
+    /// The exposure strip's range and the solved exposure time (`umbra calibrate`).
+    pub exposure: crate::calibrate::ExposureSection,
 }
 
 /// A profile that could not be used.

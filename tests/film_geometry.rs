@@ -242,3 +242,56 @@ fn non_square_pixels_10_mm_square() {
     assert!((fw - 12.0).abs() < 25.4 / 1200.0 + 1e-9, "{fw}");
     assert!((fh - 12.0).abs() < 25.4 / 600.0 + 1e-9, "{fh}");
 }
+
+#[test]
+fn annular_ring_left_by_a_hole_is_measured_on_the_film() {
+    // Two round pads, 1.2 and 2.0 mm, each around a 0.8 mm hole (Excellon, IPC-NC-349):
+    // the copper ring left is (pad − hole)/2 = 0.2 and 0.6 mm (analytic). With a 0.25 mm
+    // minimum only the first is reported; its ring is measured to the nearest pixel centre
+    // off the copper, so it lies in [0.2, 0.2 + one pixel].
+    let image = read(&format!(
+        "%ADD10C,1.2*%\n%ADD11C,2*%\nD10*\nX{}Y{}D03*\nD11*\nX{}Y{}D03*\n",
+        c(0.0),
+        c(0.0),
+        c(5.0),
+        c(0.0)
+    ));
+    let drill = umbra::excellon::read(
+        "M48\nMETRIC,TZ\nT1C0.800\n%\nG90\nG05\nT1\nX0.000Y0.000\nX5.000Y0.000\nM30\n",
+        "holes.xln",
+        &Limits::default(),
+    )
+    .unwrap();
+    let drills = [&drill];
+    let recipe = recipe(1200.0, 1200.0);
+    let opts = ArtworkOptions {
+        registration: false,
+        label: false,
+        border_mm: 1.0,
+        ..Default::default()
+    };
+    let frame = BoardFrame::new(image.bounds(), (0.0, 0.0), &opts);
+    let job = FilmJob {
+        image: &image,
+        recipe: &recipe,
+        drills: &drills,
+        frame: &frame,
+        label: Vec::new(),
+        label_mirrored: false,
+        opts: &opts,
+    };
+    let pitch = 25.4 / 1200.0;
+    let f = compose::render_film(&job, 0.25);
+    assert_eq!(f.thin_rings.len(), 1, "{:?}", f.thin_rings);
+    let (at, ring) = f.thin_rings[0];
+    assert_eq!((at.x, at.y), (0.0, 0.0));
+    assert!(ring >= 0.2 - 1e-9 && ring <= 0.2 + pitch, "ring {ring}");
+    assert!(
+        f.warnings.iter().any(|w| w.contains("annular ring")),
+        "{:?}",
+        f.warnings
+    );
+    // A 0.15 mm minimum is met by both.
+    let f = compose::render_film(&job, 0.15);
+    assert!(f.thin_rings.is_empty(), "{:?}", f.thin_rings);
+}

@@ -1,8 +1,9 @@
 //! The `umbra render` command run as a user runs it, on the demo board (examples/wren-node),
 //! with its output read back by independent decoders: the png crate, and poppler's
-//! `pdftocairo`, `pdftoppm` and `pdfinfo` (Debian package poppler-utils) for the PDF. Plus the shared
-//! board-to-pixel mapping of the top and bottom copper films (docs/film-rules.md,
-//! "Mirroring": films laid printed side to printed side have their marks coincide).
+//! `pdftocairo`, `pdftoppm` and `pdfinfo` (Debian package poppler-utils) for the PDF. Plus
+//! the shared board-to-pixel mapping of the top and bottom copper films
+//! (docs/film-rules.md, "Mirroring": films laid printed side to printed side have their
+//! marks coincide).
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};

@@ -128,6 +128,14 @@ fn read_pbm(path: &Path) -> (usize, usize, Vec<bool>) {
 fn png_at_600_and_1200_dpi_carries_phys_bit_depth_one_and_a_manifest() {
     let dir = tempfile::tempdir().unwrap();
     let src = top_copper();
+    let drill = demo_dir().join("wren-node.drill.xln");
+    let holes = umbra::excellon::read(
+        &std::fs::read_to_string(&drill).unwrap(),
+        "wren-node.drill.xln",
+        &Limits::default(),
+    )
+    .unwrap()
+    .holes;
     let mut sizes = Vec::new();
     for dpi in [600u32, 1200] {
         let name = format!("x{dpi}.png");
@@ -140,6 +148,8 @@ fn png_at_600_and_1200_dpi_carries_phys_bit_depth_one_and_a_manifest() {
                 &name,
                 "--dpi",
                 &dpi.to_string(),
+                "--drill",
+                drill.to_str().unwrap(),
             ],
         );
         ok(&out);
@@ -175,6 +185,31 @@ fn png_at_600_and_1200_dpi_carries_phys_bit_depth_one_and_a_manifest() {
             manifest["size_px"],
             serde_json::json!([png.width, png.height])
         );
+        // The affine maps board mm onto this image: each drill centre on the film (the film
+        // covers the layer's own extents, so mounting holes in the bare corners may fall
+        // outside) lands on its pilot dot, clear (docs/film-rules.md "Drill-centre marks"),
+        // and the copper around most of them, 0.3 mm to the side, is black.
+        let f = |k: &str| a[k].as_f64().unwrap();
+        let px = |x: f64, y: f64| {
+            let u = f("a") * x + f("b") * y + f("c");
+            let v = f("d") * x + f("e") * y + f("f");
+            let inside = u >= 0.0 && v >= 0.0 && u < png.width as f64 && v < png.height as f64;
+            inside.then(|| png.black[v.floor() as usize * png.width + u.floor() as usize])
+        };
+        let (mut on_film, mut ringed) = (0, 0);
+        for h in &holes {
+            if let Some(black) = px(h.at.x, h.at.y) {
+                assert!(!black, "{dpi} dpi: hole centre {:?} is black", h.at);
+                on_film += 1;
+                ringed += (px(h.at.x + 0.3, h.at.y) == Some(true)) as usize;
+            }
+        }
+        assert!(
+            on_film * 4 > holes.len() * 3,
+            "{on_film} of {} holes",
+            holes.len()
+        );
+        assert!(ringed * 2 > on_film, "{ringed} of {on_film}");
         sizes.push((png.width, png.height));
     }
     // Twice the resolution, twice the pixels each way (±1 for rounding up the film size).

@@ -280,8 +280,11 @@ fn num(v: f64) -> String {
 /// The bitmap's rows, packed MSB-first with 0 = black (DeviceGray), zlib-compressed row by
 /// row: the only full-size buffer is the compressed output.
 fn deflate_bitmap(bitmap: &Bitmap, black_is_one: bool) -> Vec<u8> {
-    // Level 6 with the zlib header (window bits > 0), default strategy.
-    let flags = create_comp_flags_from_zip_params(6, 15, 0);
+    // Level 1 with the zlib header (window bits > 0), default strategy. Films are long runs
+    // of one value: on an A4 sheet at 1200 dpi (17 MB of rows) level 1 takes about 80 ms and
+    // level 6 about 600 ms, for a file only about 1.5 times larger (1.7 vs 1.2 MB), and the
+    // PDF was the slowest stage of the whole films job (benches/films.rs).
+    let flags = create_comp_flags_from_zip_params(1, 15, 0);
     let mut comp = CompressorOxide::new(flags);
     let mut out = Vec::new();
     let mut buf = vec![0u8; 1 << 16];

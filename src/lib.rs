@@ -3,6 +3,7 @@
 //! The pipeline (see `docs/architecture.md`): load → parse/interpret → plan → layout →
 //! render → write. Each stage knows only its neighbours.
 
+pub mod device;
 pub mod diag;
 pub mod excellon;
 pub mod film;

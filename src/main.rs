@@ -89,6 +89,10 @@ struct FilmsArgs {
     /// Date printed on labels, e.g. 2026-12-02 (default: today)
     #[arg(long)]
     date: Option<String>,
+    /// Exposure device, replacing the profile's [device] kind: printer (sheets), lcd (one PNG
+    /// per film at the screen's pixel grid) or film-service (one 1-bit TIFF per film)
+    #[arg(long, value_parser = ["printer", "lcd", "film-service"])]
+    device: Option<String>,
 }
 
 #[derive(Args, Debug)]
@@ -231,7 +235,11 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
 }
 
 fn films(a: FilmsArgs, limits: &Limits) -> Result<ExitCode, String> {
-    let profile = read_profile(a.profile.as_deref())?;
+    let mut profile = read_profile(a.profile.as_deref())?;
+    if let Some(d) = &a.device {
+        profile.device.kind = d.parse()?;
+        profile.validate()?;
+    }
     // Refuse an existing output folder before doing any work.
     if a.out.exists() && !a.force {
         return Err(format!(

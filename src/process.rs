@@ -177,6 +177,8 @@ pub struct Profile {
     pub films: FilmsSection,
     pub sheet: crate::sheet::SheetSpec,
     pub artwork: crate::film::compose::ArtworkOptions,
+    /// What exposes the films: printer, masked LCD screen or film service.
+    pub device: crate::device::DeviceSection,
 }
 
 /// A profile that could not be used.
@@ -279,6 +281,7 @@ impl Profile {
                 return Err(format!("{k} = {v} must be between {lo} and {hi}"));
             }
         }
+        self.device.validate()?;
         Ok(())
     }
 

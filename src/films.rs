@@ -239,7 +239,7 @@ fn face(side: Side) -> BoardFace {
     }
 }
 
-fn polarity_words(id: &LayerId, recipe: &FilmRecipe) -> String {
+pub(crate) fn polarity_words(id: &LayerId, recipe: &FilmRecipe) -> String {
     let material = match id.function {
         LayerFunction::SolderMask => "mask openings",
         LayerFunction::Legend => "legend",
@@ -327,6 +327,10 @@ pub struct Summary {
     pub pdf: String,
     pub tooling_holes: Option<String>,
     pub warnings: Vec<String>,
+    /// The exposure device the films were made for.
+    pub device: crate::device::DeviceKind,
+    /// The image files of an LCD screen or film service (empty for a printer's sheets).
+    pub images: Vec<crate::device::DeviceImage>,
 }
 
 /// Height reserved above every piece on a sheet for its caption, mm.
@@ -334,14 +338,52 @@ const CAPTION_MM: f64 = 3.5;
 const CAPTION_CAP_MM: f64 = 1.6;
 const CAPTION_PEN_MM: f64 = 0.16;
 
-/// Decides and renders every film of the board.
-pub fn make_films(
-    board: &Board,
+/// One film decided (recipe, label) but not yet rendered.
+#[derive(Debug, Clone)]
+pub struct PlannedFilm<'a> {
+    pub selected: Selected<'a>,
+    pub recipe: FilmRecipe,
+    pub label: Vec<String>,
+    pub label_mirrored: bool,
+    /// The drill files whose holes are marked on this film (copper films only).
+    pub drills: Vec<&'a DrillFile>,
+}
+
+/// Every film of a board, decided, with the frame they share.
+#[derive(Debug, Clone)]
+pub struct FilmPlan<'a> {
+    pub films: Vec<PlannedFilm<'a>>,
+    pub frame: BoardFrame,
+    /// The profile with the job file's overrides applied.
+    pub profile: Profile,
+}
+
+impl<'a> FilmPlan<'a> {
+    /// What `render_film` needs for film `i`.
+    pub fn job(&self, i: usize) -> FilmJob<'_> {
+        let f = &self.films[i];
+        FilmJob {
+            image: f.selected.image,
+            recipe: &f.recipe,
+            drills: &f.drills,
+            frame: &self.frame,
+            label: f.label.clone(),
+            label_mirrored: f.label_mirrored,
+            face: Some(face(f.selected.id.side)),
+            stack_targets: self.profile.films.copies > 1,
+            opts: &self.profile.artwork,
+        }
+    }
+}
+
+/// Decides every film of the board (selection, recipes, labels, frame) without rendering.
+pub fn plan_films<'a>(
+    board: &'a Board,
     profile: &Profile,
     job: Option<&Job>,
     board_name: &str,
     date: &str,
-) -> Result<(Vec<MadeFilm>, BoardFrame, Vec<String>), FilmsError> {
+) -> Result<FilmPlan<'a>, FilmsError> {
     let mut profile = profile.clone();
     if let Some(j) = job {
         if let Some(f) = &j.films {
@@ -361,9 +403,8 @@ pub fn make_films(
     }
     let drills = drill_files(board);
     let toward = profile.process.printed_side == crate::process::PrintedSide::TowardBoard;
-    let mut warnings = Vec::new();
-    let mut plans = Vec::new();
-    for s in &selected {
+    let mut films = Vec::new();
+    for s in selected {
         let recipe = plan(&s.id, s.image_negative, &profile);
         let realized = compose::realized_for(&recipe);
         let info = LabelInfo {
@@ -387,52 +428,64 @@ pub fn make_films(
             copy: None,
             tile: None,
         };
-        let lines = marks::label_lines(&info);
-        let mirrored = marks::label_mirrored_in_board(recipe.mirror, toward);
-        plans.push((s, recipe, lines, mirrored));
+        let label = marks::label_lines(&info);
+        let label_mirrored = marks::label_mirrored_in_board(recipe.mirror, toward);
+        let film_drills = if s.id.function == LayerFunction::Copper {
+            drills.clone()
+        } else {
+            Vec::new()
+        };
+        films.push(PlannedFilm {
+            selected: s,
+            recipe,
+            label,
+            label_mirrored,
+            drills: film_drills,
+        });
     }
-    let label_size = plans
+    let label_size = films
         .iter()
-        .map(|p| marks::label_size_mm(&p.2, profile.artwork.label_cap_mm))
+        .map(|p| marks::label_size_mm(&p.label, profile.artwork.label_cap_mm))
         .fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
-    let indicator_size = plans
+    let indicator_size = films
         .iter()
         .map(|p| {
             marks::side_indicator_size_mm(
-                face(p.0.id.side),
+                face(p.selected.id.side),
                 profile.artwork.label_cap_mm * compose::INDICATOR_CAPS,
             )
         })
         .fold((0.0f64, 0.0f64), |a, b| (a.0.max(b.0), a.1.max(b.1)));
     let frame = BoardFrame::new(extents, label_size, indicator_size, &profile.artwork);
+    Ok(FilmPlan {
+        films,
+        frame,
+        profile,
+    })
+}
 
+/// Decides and renders every film of the board.
+pub fn make_films(
+    board: &Board,
+    profile: &Profile,
+    job: Option<&Job>,
+    board_name: &str,
+    date: &str,
+) -> Result<(Vec<MadeFilm>, BoardFrame, Vec<String>), FilmsError> {
+    let plan = plan_films(board, profile, job, board_name, date)?;
+    let mut warnings = Vec::new();
     let mut made = Vec::new();
-    for (s, recipe, lines, label_mirrored) in plans {
-        let is_copper = s.id.function == LayerFunction::Copper;
-        let film_drills: Vec<&DrillFile> = if is_copper {
-            drills.clone()
-        } else {
-            Vec::new()
-        };
-        let fj = FilmJob {
-            image: s.image,
-            recipe: &recipe,
-            drills: &film_drills,
-            frame: &frame,
-            label: lines,
-            label_mirrored,
-            face: Some(face(s.id.side)),
-            stack_targets: profile.films.copies > 1,
-            opts: &profile.artwork,
-        };
-        let map = compose::film_map(&frame, &recipe);
-        if map.pixel_count() > profile.input_limits.max_film_pixels {
+    for (i, pf) in plan.films.iter().enumerate() {
+        let s = &pf.selected;
+        let map = compose::film_map(&plan.frame, &pf.recipe);
+        if map.pixel_count() > plan.profile.input_limits.max_film_pixels {
             return Err(FilmsError::Layout(format!(
                 "the {} film would be {} × {} pixels, over the limit; lower the resolution",
                 s.title, map.width, map.height
             )));
         }
-        let rendered = compose::render_film(&fj, profile.drill_marks.min_annular_ring_mm);
+        let rendered =
+            compose::render_film(&plan.job(i), plan.profile.drill_marks.min_annular_ring_mm);
         warnings.extend(
             rendered
                 .warnings
@@ -444,11 +497,11 @@ pub fn make_films(
             title: s.title.clone(),
             source: s.source.clone(),
             id: s.id,
-            recipe,
+            recipe: pf.recipe.clone(),
             rendered,
         });
     }
-    Ok((made, frame, warnings))
+    Ok((made, plan.frame, warnings))
 }
 
 /// Lays the films out on sheets. Copper films form one group and mask films another, so
@@ -807,6 +860,9 @@ pub fn run(
     opts: &RunOptions,
     progress: &dyn Fn(&str),
 ) -> Result<Summary, FilmsError> {
+    if profile.device.kind != crate::device::DeviceKind::Printer {
+        return crate::device::run(board, profile, job, opts, progress);
+    }
     let staged = StagedDir::new(&opts.out, opts.force)?;
     progress("rendering films");
     let (films, frame, mut warnings) =
@@ -904,6 +960,8 @@ pub fn run(
         pdf: "films.pdf".into(),
         tooling_holes: tooling,
         warnings,
+        device: crate::device::DeviceKind::Printer,
+        images: Vec::new(),
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;
@@ -964,12 +1022,15 @@ pub fn summary_text(s: &Summary, out: &Path) -> String {
         }
     }
     let mut out_s = format!(
-        "board: {}   extents {:.2} x {:.2} mm   {} film(s) on {} sheet(s)\n\n",
+        "board: {}   extents {:.2} x {:.2} mm   {} film(s) on {}\n\n",
         s.board,
         s.board_extents_mm.width(),
         s.board_extents_mm.height(),
         s.films.len(),
-        s.sheets.len()
+        match s.device {
+            crate::device::DeviceKind::Printer => format!("{} sheet(s)", s.sheets.len()),
+            d => format!("{} image(s) for the {}", s.images.len(), d.name()),
+        }
     );
     for r in &rows {
         let mut line = String::new();
@@ -981,16 +1042,20 @@ pub fn summary_text(s: &Summary, out: &Path) -> String {
         out_s.push_str(line.trim_end());
         out_s.push('\n');
     }
-    out_s.push_str(&format!(
-        "\nwritten to {}: {} (print at actual size / 100 %, no fit-to-page), {} PNG sheet(s), manifest.json{}\n",
-        out.display(),
-        s.pdf,
-        s.sheets.len(),
-        s.tooling_holes
-            .as_ref()
-            .map(|t| format!(", {t}"))
-            .unwrap_or_default()
-    ));
+    if s.device != crate::device::DeviceKind::Printer {
+        out_s.push_str(&crate::device::written_note(s, out));
+    } else {
+        out_s.push_str(&format!(
+            "\nwritten to {}: {} (print at actual size / 100 %, no fit-to-page), {} PNG sheet(s), manifest.json{}\n",
+            out.display(),
+            s.pdf,
+            s.sheets.len(),
+            s.tooling_holes
+                .as_ref()
+                .map(|t| format!(", {t}"))
+                .unwrap_or_default()
+        ));
+    }
     let n: usize = s.warnings.len();
     if n > 0 {
         out_s.push_str(&format!("\n{n} warning(s):\n"));

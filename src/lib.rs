@@ -4,6 +4,7 @@
 //! render → write. Each stage knows only its neighbours.
 
 pub mod calibrate;
+pub mod device;
 pub mod diag;
 pub mod excellon;
 pub mod film;

@@ -94,6 +94,10 @@ struct FilmsArgs {
     /// Date printed on labels, e.g. 2026-12-02 (default: today)
     #[arg(long)]
     date: Option<String>,
+    /// Exposure device, replacing the profile's [device] kind: printer (sheets), lcd (one PNG
+    /// per film at the screen's pixel grid) or film-service (one 1-bit TIFF per film)
+    #[arg(long, value_parser = ["printer", "lcd", "film-service"])]
+    device: Option<String>,
 }
 
 #[derive(Args, Debug)]
@@ -244,7 +248,11 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
 }
 
 fn films(a: FilmsArgs) -> Result<ExitCode, String> {
-    let profile = read_profile(a.profile.as_deref())?;
+    let mut profile = read_profile(a.profile.as_deref())?;
+    if let Some(d) = &a.device {
+        profile.device.kind = d.parse()?;
+        profile.validate()?;
+    }
     let limits = &profile.input_limits;
     // Refuse an existing output folder before doing any work.
     if a.out.exists() && !a.force {

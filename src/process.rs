@@ -182,6 +182,8 @@ pub struct Profile {
     pub input_limits: crate::limits::Limits,
     /// The exposure strip's range and the solved exposure time (`umbra calibrate`).
     pub exposure: crate::calibrate::ExposureSection,
+    /// What exposes the films: printer, masked LCD screen or film service.
+    pub device: crate::device::DeviceSection,
 }
 
 /// A profile that could not be used.
@@ -284,6 +286,7 @@ impl Profile {
                 return Err(format!("{k} = {v} must be between {lo} and {hi}"));
             }
         }
+        self.device.validate()?;
         Ok(())
     }
 

@@ -350,8 +350,23 @@ fn combine(dst: &mut Bitmap, src: &Bitmap, clear: bool) {
 
 /// Renders one film. See the module docs for the order of operations.
 pub fn render_film(job: &FilmJob<'_>, min_annular_ring_mm: f64) -> RenderedFilm {
+    render_film_on(
+        job,
+        film_map(job.frame, job.recipe),
+        Some(min_annular_ring_mm),
+    )
+}
+
+/// [`render_film`] on any pixel grid of the recipe's resolution: a band of the film's rows
+/// (banded output; the band must be grown by the edge offset's reach, then cropped) or a whole
+/// screen around the film. The annular-ring check needs the whole film around each hole, so
+/// it runs only when `min_annular_ring_mm` is given.
+pub fn render_film_on(
+    job: &FilmJob<'_>,
+    map: DeviceMap,
+    min_annular_ring_mm: Option<f64>,
+) -> RenderedFilm {
     let recipe = job.recipe;
-    let map = film_map(job.frame, recipe);
     let mut warnings = Vec::new();
 
     // 1. The layer image in material terms.
@@ -370,7 +385,13 @@ pub fn render_film(job: &FilmJob<'_>, min_annular_ring_mm: f64) -> RenderedFilm 
     // 2. Drill-centre marks, after checking the copper ring each leaves.
     let mut thin_rings = Vec::new();
     if recipe.drill_marks != DrillMarkStyle::None && !job.drills.is_empty() {
-        for hit in drill_hits(job.drills) {
+        // No ring check without the whole film around the holes (see render_film_on).
+        let checked = match min_annular_ring_mm {
+            Some(_) => drill_hits(job.drills),
+            None => Vec::new(),
+        };
+        let min_annular_ring_mm = min_annular_ring_mm.unwrap_or(0.0);
+        for hit in checked {
             let mark = match recipe.drill_marks {
                 DrillMarkStyle::Full => hit.hole_mm,
                 _ => recipe.pilot_diameter_mm,

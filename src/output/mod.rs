@@ -6,6 +6,7 @@
 mod atomic;
 pub mod pdf;
 pub mod png;
+pub mod tiff;
 
 pub use atomic::write_atomically;
 

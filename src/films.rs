@@ -217,6 +217,8 @@ pub struct MadeFilm {
     pub id: LayerId,
     pub recipe: FilmRecipe,
     pub rendered: RenderedFilm,
+    /// What the film's label says (its lines are `marks::label_lines(&label)`).
+    pub label: LabelInfo,
 }
 
 /// One film's entry in the summary and the manifest.
@@ -343,7 +345,7 @@ pub fn make_films(
         };
         let lines = marks::label_lines(&info);
         let mirrored = marks::label_mirrored_in_board(recipe.mirror, toward);
-        plans.push((s, recipe, lines, mirrored));
+        plans.push((s, recipe, lines, mirrored, info));
     }
     let label_size = plans
         .iter()
@@ -352,7 +354,7 @@ pub fn make_films(
     let frame = BoardFrame::new(extents, label_size, &profile.artwork);
 
     let mut made = Vec::new();
-    for (s, recipe, lines, label_mirrored) in plans {
+    for (s, recipe, lines, label_mirrored, label) in plans {
         let is_copper = s.id.function == LayerFunction::Copper;
         let film_drills: Vec<&DrillFile> = if is_copper {
             drills.clone()
@@ -389,6 +391,7 @@ pub fn make_films(
             id: s.id,
             recipe,
             rendered,
+            label,
         });
     }
     Ok((made, frame, warnings))
@@ -502,6 +505,56 @@ fn caption(film: &MadeFilm, copy: u32, copies: u32, tile: Option<&sheet::Tile>) 
     s
 }
 
+/// Where a piece goes on a sheet of `sheet_h` pixel rows at `dpi`: its top-left pixel on the
+/// sheet (`left`, `top`) and the block `(sx, sy, w, h)` of the film's pixels it shows (the
+/// whole film, or the tile's part of it). Shared by the raster sheets and the vector pages.
+pub fn piece_pixels(
+    p: &sheet::Placement,
+    film_px: (usize, usize),
+    dpi: (f64, f64),
+    sheet_h: usize,
+) -> (i64, i64, (usize, usize, usize, usize)) {
+    let (dpi_x, dpi_y) = dpi;
+    let (fw, fh) = film_px;
+    // The piece's top-left pixel on the sheet (sheet y is up in mm, down in pixels).
+    let left = (p.x_mm / 25.4 * dpi_x).round() as i64;
+    let top = sheet_h as i64 - ((p.y_mm + p.height_mm) / 25.4 * dpi_y).round() as i64;
+    let block = match &p.tile {
+        None => (0, 0, fw, fh),
+        Some(t) => {
+            let r = t.source_rect;
+            let x0 = (r.min_x / 25.4 * dpi_x).round().max(0.0) as usize;
+            let x1 = ((r.max_x / 25.4 * dpi_x).round() as usize).min(fw);
+            let y_top = (fh as f64 - r.max_y / 25.4 * dpi_y).round().max(0.0) as usize;
+            let y_bot = ((fh as f64 - r.min_y / 25.4 * dpi_y).round() as usize).min(fh);
+            (
+                x0,
+                y_top,
+                x1.saturating_sub(x0),
+                y_bot.saturating_sub(y_top),
+            )
+        }
+    };
+    (left, top, block)
+}
+
+/// The caption above a piece, as strokes in sheet mm (origin lower-left, y up).
+pub fn caption_shapes(
+    film: &MadeFilm,
+    p: &sheet::Placement,
+    copies: u32,
+) -> Vec<crate::image::Shape> {
+    let text = caption(film, p.copy, copies, p.tile.as_ref());
+    crate::film::font::text_shapes(
+        &text,
+        Point::new(p.x_mm, p.y_mm + p.height_mm + 1.0),
+        CAPTION_CAP_MM,
+        0.16,
+        false,
+        0.0,
+    )
+}
+
 /// A sheet bitmap with its films, and the reports of the pieces on it.
 pub struct RenderedSheet {
     pub bitmap: Bitmap,
@@ -526,28 +579,8 @@ pub fn compose_sheet(
     for p in &plan.placements {
         let film = &films[p.film];
         let fb = &film.rendered.bitmap;
-        // The piece's top-left pixel on the sheet (sheet y is up in mm, down in pixels).
-        let left = (p.x_mm / 25.4 * dpi_x).round() as i64;
-        let top = h as i64 - ((p.y_mm + p.height_mm) / 25.4 * dpi_y).round() as i64;
-        let (sx, sy, cw, ch) = match &p.tile {
-            None => (0, 0, fb.width(), fb.height()),
-            Some(t) => {
-                let r = t.source_rect;
-                let x0 = (r.min_x / 25.4 * dpi_x).round().max(0.0) as usize;
-                let x1 = ((r.max_x / 25.4 * dpi_x).round() as usize).min(fb.width());
-                let y_top = (fb.height() as f64 - r.max_y / 25.4 * dpi_y)
-                    .round()
-                    .max(0.0) as usize;
-                let y_bot = ((fb.height() as f64 - r.min_y / 25.4 * dpi_y).round() as usize)
-                    .min(fb.height());
-                (
-                    x0,
-                    y_top,
-                    x1.saturating_sub(x0),
-                    y_bot.saturating_sub(y_top),
-                )
-            }
-        };
+        let (left, top, (sx, sy, cw, ch)) =
+            piece_pixels(p, (fb.width(), fb.height()), (dpi_x, dpi_y), h);
         blit(&mut bitmap, left, top, fb, (sx, sy, cw, ch));
         let a = film.rendered.map.affine();
         let board_to_sheet_px = Affine {
@@ -555,15 +588,7 @@ pub fn compose_sheet(
             f: a.f + top as f64 - sy as f64,
             ..a
         };
-        let text = caption(film, p.copy, profile.films.copies, p.tile.as_ref());
-        captions.extend(crate::film::font::text_shapes(
-            &text,
-            Point::new(p.x_mm, p.y_mm + p.height_mm + 1.0),
-            CAPTION_CAP_MM,
-            0.16,
-            false,
-            0.0,
-        ));
+        captions.extend(caption_shapes(film, p, profile.films.copies));
         pieces.push((
             p.film,
             PlacementReport {
@@ -707,6 +732,8 @@ pub struct RunOptions {
     pub force: bool,
     pub board_name: String,
     pub date: String,
+    /// Also write vector films (films-vector.pdf and one SVG per film).
+    pub vector: bool,
 }
 
 /// The whole job: films, layout, sheets, files. Returns the summary.
@@ -764,6 +791,11 @@ pub fn run(
         .map_err(|e| FilmsError::Output(e.to_string()))?;
     drop(pages);
     drop(pdf_pages_bitmaps);
+    if opts.vector {
+        progress("composing vector films");
+        crate::vector::write_vector_outputs(&staged, board, &films, &frame, &layout, profile)
+            .map_err(FilmsError::Output)?;
+    }
     let mut tooling = None;
     if profile.films.tooling_holes {
         if let Some(t) = &frame.targets {

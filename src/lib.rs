@@ -19,3 +19,4 @@ pub mod process;
 pub mod raster;
 pub mod sheet;
 pub mod synth;
+pub mod vector;

@@ -89,6 +89,10 @@ struct FilmsArgs {
     /// Date printed on labels, e.g. 2026-12-02 (default: today)
     #[arg(long)]
     date: Option<String>,
+    /// Also write vector films: films-vector.pdf (same sheets) and one SVG per film, with
+    /// the edge offset applied exactly instead of in whole pixels
+    #[arg(long)]
+    vector: bool,
 }
 
 #[derive(Args, Debug)]
@@ -285,6 +289,7 @@ fn films(a: FilmsArgs, limits: &Limits) -> Result<ExitCode, String> {
         force: a.force,
         board_name,
         date: a.date.clone().unwrap_or_else(today),
+        vector: a.vector,
     };
     let progress = |m: &str| bar.set_message(m.to_string());
     let summary = umbra::films::run(&board, &profile, job.as_ref(), &opts, &progress)

@@ -213,7 +213,7 @@ pub fn compose_film(job: &FilmJob<'_>, opts: &VectorOptions) -> VectorFilm {
     for s in artwork_shapes(job) {
         items.extend(item(true, fl.rings(&s), false));
     }
-    let material = ops::simplify(&paint(&items, board_clip.as_ref()));
+    let material = ops::union_many(paint(&items, board_clip.as_ref()));
     drop(items);
 
     // 4. Black and clear.

@@ -102,7 +102,7 @@ pub struct Flattener {
 /// most `tol`: `r·(1 − cos(θ/2)) ≤ tol` ⇔ `θ ≤ 2·acos(1 − tol/r)`.
 pub fn chords_for(r: f64, sweep: f64, tol: f64) -> usize {
     let sweep = sweep.abs();
-    if !(r > 0.0) || !sweep.is_finite() || sweep == 0.0 {
+    if r.is_nan() || r <= 0.0 || !sweep.is_finite() || sweep == 0.0 {
         return 1;
     }
     let max_step = if tol >= r {
@@ -160,6 +160,32 @@ impl Flattener {
         out.push(end);
     }
 
+    /// Points on the circle about `c` of radius `r` from angle `t0` sweeping `sweep > 0`
+    /// counter-clockwise, both ends included. Between the ends the vertices sit at the
+    /// circle's fixed angles `k·2π/n` (as in [`Flattener::disc`]), so the caps of tracks
+    /// meeting at one point, and the pads under them, share vertices instead of crossing
+    /// each other's chords at grazing angles: such near-coincident chords multiply the
+    /// intersections an overlay must resolve.
+    fn locked_arc(&self, c: Point, r: f64, t0: f64, sweep: f64, out: &mut Vec<Point>) {
+        let n = chords_for(r, TAU, self.tolerance_mm);
+        let step = TAU / n as f64;
+        let at = |a: f64| Point::new(c.x + r * a.cos(), c.y + r * a.sin());
+        out.push(at(t0));
+        let first = (t0 / step).floor() as i64 + 1;
+        let end = t0 + sweep;
+        let mut k = first;
+        // Skip grid angles within a hair of the ends (they would make a degenerate chord).
+        let eps = step * 1e-3;
+        while (k as f64) * step < end - eps {
+            let a = k as f64 * step;
+            if a > t0 + eps {
+                out.push(at(a));
+            }
+            k += 1;
+        }
+        out.push(at(end));
+    }
+
     /// Maps board points to a film-space ring, counter-clockwise in film space.
     fn ring(&self, pts: &[Point]) -> Ring {
         let mut r: Ring = pts.iter().map(|p| self.map(*p)).collect();
@@ -171,7 +197,7 @@ impl Flattener {
 
     /// A filled circle.
     pub fn disc(&self, c: Point, r: f64) -> Vec<Ring> {
-        if !(r > 0.0) {
+        if r.is_nan() || r <= 0.0 {
             return Vec::new();
         }
         vec![self.ring(&self.circle_board(c, r))]
@@ -179,7 +205,7 @@ impl Flattener {
 
     /// Points within `h` of the segment a–b: a capsule (two half circles joined).
     pub fn capsule(&self, a: Point, b: Point, h: f64) -> Vec<Ring> {
-        if !(h > 0.0) {
+        if h.is_nan() || h <= 0.0 {
             return Vec::new();
         }
         let len = a.dist(b);
@@ -188,14 +214,9 @@ impl Flattener {
         }
         let dir = (b.y - a.y).atan2(b.x - a.x);
         // Each half circle: from dir − 90° to dir + 90° about its end, counter-clockwise.
-        let half = chords_for(h, PI, self.tolerance_mm);
-        let mut pts = Vec::with_capacity(2 * half + 2);
-        for (c, base) in [(b, dir - PI / 2.0), (a, dir + PI / 2.0)] {
-            for k in 0..=half {
-                let t = base + PI * k as f64 / half as f64;
-                pts.push(Point::new(c.x + h * t.cos(), c.y + h * t.sin()));
-            }
-        }
+        let mut pts = Vec::new();
+        self.locked_arc(b, h, dir - PI / 2.0, PI, &mut pts);
+        self.locked_arc(a, h, dir + PI / 2.0, PI, &mut pts);
         vec![self.ring(&pts)]
     }
 
@@ -210,7 +231,7 @@ impl Flattener {
         turn: Turn,
         h: f64,
     ) -> Vec<Ring> {
-        if !(h > 0.0) {
+        if h.is_nan() || h <= 0.0 {
             return Vec::new();
         }
         let r = center.dist(start);
@@ -245,8 +266,8 @@ impl Flattener {
         if ri > 0.0 {
             out.push(self.ring(&annular_sector(self, center, ri, ro, a0, s)));
         } else {
-            let mut pts = vec![center, at(ro, a0)];
-            self.arc_board(at(ro, a0), at(ro, a0 + s), center, ro, s, &mut pts);
+            let mut pts = vec![center];
+            self.locked_arc(center, ro, a0, s, &mut pts);
             out.push(self.ring(&pts));
         }
         out.extend(self.disc(p0, h));
@@ -335,11 +356,11 @@ impl Flattener {
 /// The ring of an annular sector between radii `ri` and `ro` from angle `a0` sweeping `s`
 /// counter-clockwise, in board points.
 fn annular_sector(f: &Flattener, c: Point, ri: f64, ro: f64, a0: f64, s: f64) -> Vec<Point> {
-    let at = |rad: f64, a: f64| Point::new(c.x + rad * a.cos(), c.y + rad * a.sin());
-    let mut pts = vec![at(ro, a0)];
-    f.arc_board(at(ro, a0), at(ro, a0 + s), c, ro, s, &mut pts);
-    pts.push(at(ri, a0 + s));
-    f.arc_board(at(ri, a0 + s), at(ri, a0), c, ri, -s, &mut pts);
+    let mut pts = Vec::new();
+    f.locked_arc(c, ro, a0, s, &mut pts);
+    let mut inner = Vec::new();
+    f.locked_arc(c, ri, a0, s, &mut inner);
+    pts.extend(inner.into_iter().rev());
     pts
 }
 
@@ -383,7 +404,7 @@ pub fn shape_is_finite(shape: &Shape) -> bool {
             end,
             arc,
             width,
-        } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
+        } => pf(start) && pf(end) && width.is_finite() && arc.map_or(true, |(c, _)| pf(&c)),
         Shape::Polygon(c) => {
             pf(&c.start)
                 && c.segments.iter().all(|s| match s {

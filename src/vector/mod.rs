@@ -31,19 +31,11 @@ pub type Polygon = Vec<Ring>;
 pub type Region = Vec<Polygon>;
 
 /// Settings of the vector path.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct VectorOptions {
     /// Largest distance between a true arc or circle and the chords that replace it, mm.
     /// `None`: [`DEFAULT_DOT_FRACTION`] of the film's device dot (finer axis).
     pub arc_tolerance_mm: Option<f64>,
-}
-
-impl Default for VectorOptions {
-    fn default() -> Self {
-        VectorOptions {
-            arc_tolerance_mm: None,
-        }
-    }
 }
 
 /// Default arc tolerance as a fraction of the device dot: 1/8 dot is 2.6 µm at 1200 dpi,

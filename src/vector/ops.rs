@@ -12,6 +12,7 @@ use i_overlay::core::overlay_rule::OverlayRule;
 use i_overlay::float::overlay::FloatOverlay;
 use i_overlay::mesh::float::outline::offset::OutlineOffset;
 use i_overlay::mesh::float::style::{LineJoin, OutlineStyle};
+use rayon::prelude::*;
 
 fn run(subj: &[Ring], clip: &[Ring], rule: OverlayRule) -> Region {
     let finite = |r: &[Ring]| {
@@ -35,6 +36,69 @@ fn run(subj: &[Ring], clip: &[Ring], rule: OverlayRule) -> Region {
 /// The union of all rings (non-zero winding), as a clean region.
 pub fn simplify(rings: &[Ring]) -> Region {
     run(rings, &[], OverlayRule::Subject)
+}
+
+/// Rings per leaf of [`union_many`]: small enough that each overlay is cheap.
+const UNION_LEAF: usize = 256;
+
+/// The union of many rings (non-zero winding), as [`simplify`] gives it, computed by
+/// divide and conquer: the rings are ordered along a Z-order curve of their box centres,
+/// leaves of neighbouring rings are united, then neighbouring results pairwise, in
+/// parallel. Each overlay then sees only nearby geometry, and merging two finished regions
+/// meets far fewer crossings than one overlay of every ring at once.
+pub fn union_many(rings: Vec<Ring>) -> Region {
+    let mut keyed: Vec<(u64, Ring)> = match super::rings_bounds(&rings) {
+        None => return Region::new(),
+        Some(all) => {
+            let span = (all[2] - all[0]).max(all[3] - all[1]).max(1e-9);
+            rings
+                .into_iter()
+                .filter(|r| r.len() >= 3)
+                .map(|r| {
+                    let b = super::rings_bounds(std::iter::once(&r)).unwrap_or(all);
+                    let q =
+                        |v: f64, o: f64| (((v - o) / span) * 65535.0).clamp(0.0, 65535.0) as u32;
+                    let key = morton(
+                        q((b[0] + b[2]) / 2.0, all[0]),
+                        q((b[1] + b[3]) / 2.0, all[1]),
+                    );
+                    (key, r)
+                })
+                .collect()
+        }
+    };
+    keyed.sort_by_key(|k| k.0);
+    let rings: Vec<Ring> = keyed.into_iter().map(|k| k.1).collect();
+    let mut level: Vec<Region> = rings.par_chunks(UNION_LEAF).map(simplify).collect();
+    while level.len() > 1 {
+        level = level
+            .par_chunks(2)
+            .map(|pair| match pair {
+                [a, b] => {
+                    let a: Vec<Ring> = a.iter().flatten().cloned().collect();
+                    let b: Vec<Ring> = b.iter().flatten().cloned().collect();
+                    union(&a, &b)
+                }
+                [a] => a.clone(),
+                _ => Region::new(),
+            })
+            .collect();
+    }
+    level.pop().unwrap_or_default()
+}
+
+/// Interleaves the bits of x and y (Z-order).
+fn morton(x: u32, y: u32) -> u64 {
+    let spread = |v: u32| {
+        let mut v = v as u64 & 0xffff_ffff;
+        v = (v | (v << 16)) & 0x0000_ffff_0000_ffff;
+        v = (v | (v << 8)) & 0x00ff_00ff_00ff_00ff;
+        v = (v | (v << 4)) & 0x0f0f_0f0f_0f0f_0f0f;
+        v = (v | (v << 2)) & 0x3333_3333_3333_3333;
+        v = (v | (v << 1)) & 0x5555_5555_5555_5555;
+        v
+    };
+    spread(x) | (spread(y) << 1)
 }
 
 /// `a ∪ b`.

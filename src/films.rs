@@ -262,6 +262,8 @@ pub struct MadeFilm {
     pub id: LayerId,
     pub recipe: FilmRecipe,
     pub rendered: RenderedFilm,
+    /// What the film's label says (its lines are `marks::label_lines(&label)`).
+    pub label: LabelInfo,
 }
 
 /// One film's entry in the summary and the manifest.
@@ -344,6 +346,8 @@ pub struct PlannedFilm<'a> {
     pub selected: Selected<'a>,
     pub recipe: FilmRecipe,
     pub label: Vec<String>,
+    /// What the label says (`label` is `marks::label_lines(&info)`).
+    pub info: LabelInfo,
     pub label_mirrored: bool,
     /// The drill files whose holes are marked on this film (copper films only).
     pub drills: Vec<&'a DrillFile>,
@@ -439,6 +443,7 @@ pub fn plan_films<'a>(
             selected: s,
             recipe,
             label,
+            info,
             label_mirrored,
             drills: film_drills,
         });
@@ -499,6 +504,7 @@ pub fn make_films(
             id: s.id,
             recipe: pf.recipe.clone(),
             rendered,
+            label: pf.info.clone(),
         });
     }
     Ok((made, plan.frame, warnings))
@@ -639,6 +645,58 @@ fn caption(film: &MadeFilm, copy: u32, copies: u32, tile: Option<&sheet::Tile>) 
     s
 }
 
+/// Where a piece goes on a sheet of `sheet_h` pixel rows at `dpi`: its top-left pixel on the
+/// sheet (`left`, `top`) and the block `(sx, sy, w, h)` of the film's pixels it shows (the
+/// whole film, or the tile's part of it). Shared by the raster sheets and the vector pages.
+pub fn piece_pixels(
+    p: &sheet::Placement,
+    film_px: (usize, usize),
+    dpi: (f64, f64),
+    sheet_h: usize,
+) -> (i64, i64, (usize, usize, usize, usize)) {
+    let (dpi_x, dpi_y) = dpi;
+    let (fw, fh) = film_px;
+    // The piece's top-left pixel on the sheet (sheet y is up in mm, down in pixels).
+    let left = (p.x_mm / 25.4 * dpi_x).round() as i64;
+    let top = sheet_h as i64 - ((p.y_mm + p.height_mm) / 25.4 * dpi_y).round() as i64;
+    let block = match &p.tile {
+        None => (0, 0, fw, fh),
+        Some(t) => {
+            let r = t.source_rect;
+            let x0 = (r.min_x / 25.4 * dpi_x).round().max(0.0) as usize;
+            let x1 = ((r.max_x / 25.4 * dpi_x).round() as usize).min(fw);
+            let y_top = (fh as f64 - r.max_y / 25.4 * dpi_y).round().max(0.0) as usize;
+            let y_bot = ((fh as f64 - r.min_y / 25.4 * dpi_y).round() as usize).min(fh);
+            (
+                x0,
+                y_top,
+                x1.saturating_sub(x0),
+                y_bot.saturating_sub(y_top),
+            )
+        }
+    };
+    (left, top, block)
+}
+
+/// The caption above a piece, as strokes in sheet mm (origin lower-left, y up).
+pub fn caption_shapes(
+    film: &MadeFilm,
+    p: &sheet::Placement,
+    copies: u32,
+) -> Vec<crate::image::Shape> {
+    let text = caption(film, p.copy, copies, p.tile.as_ref());
+    crate::film::font::text_shapes(
+        &text,
+        // Half a pen in from the piece's left edge: a round pen centred on the piece's
+        // edge would reach into the unprintable margin when the piece touches it.
+        Point::new(p.x_mm + CAPTION_PEN_MM / 2.0, p.y_mm + p.height_mm + 1.0),
+        CAPTION_CAP_MM,
+        CAPTION_PEN_MM,
+        false,
+        0.0,
+    )
+}
+
 /// A sheet bitmap with its films, and the reports of the pieces on it.
 pub struct RenderedSheet {
     pub bitmap: Bitmap,
@@ -663,28 +721,8 @@ pub fn compose_sheet(
     for p in &plan.placements {
         let film = &films[p.film];
         let fb = &film.rendered.bitmap;
-        // The piece's top-left pixel on the sheet (sheet y is up in mm, down in pixels).
-        let left = (p.x_mm / 25.4 * dpi_x).round() as i64;
-        let top = h as i64 - ((p.y_mm + p.height_mm) / 25.4 * dpi_y).round() as i64;
-        let (sx, sy, cw, ch) = match &p.tile {
-            None => (0, 0, fb.width(), fb.height()),
-            Some(t) => {
-                let r = t.source_rect;
-                let x0 = (r.min_x / 25.4 * dpi_x).round().max(0.0) as usize;
-                let x1 = ((r.max_x / 25.4 * dpi_x).round() as usize).min(fb.width());
-                let y_top = (fb.height() as f64 - r.max_y / 25.4 * dpi_y)
-                    .round()
-                    .max(0.0) as usize;
-                let y_bot = ((fb.height() as f64 - r.min_y / 25.4 * dpi_y).round() as usize)
-                    .min(fb.height());
-                (
-                    x0,
-                    y_top,
-                    x1.saturating_sub(x0),
-                    y_bot.saturating_sub(y_top),
-                )
-            }
-        };
+        let (left, top, (sx, sy, cw, ch)) =
+            piece_pixels(p, (fb.width(), fb.height()), (dpi_x, dpi_y), h);
         blit(&mut bitmap, left, top, fb, (sx, sy, cw, ch));
         let a = film.rendered.map.affine();
         let board_to_sheet_px = Affine {
@@ -692,17 +730,7 @@ pub fn compose_sheet(
             f: a.f + top as f64 - sy as f64,
             ..a
         };
-        let text = caption(film, p.copy, profile.films.copies, p.tile.as_ref());
-        captions.extend(crate::film::font::text_shapes(
-            &text,
-            // Half a pen in from the piece's left edge: a round pen centred on the piece's
-            // edge would reach into the unprintable margin when the piece touches it.
-            Point::new(p.x_mm + CAPTION_PEN_MM / 2.0, p.y_mm + p.height_mm + 1.0),
-            CAPTION_CAP_MM,
-            CAPTION_PEN_MM,
-            false,
-            0.0,
-        ));
+        captions.extend(caption_shapes(film, p, profile.films.copies));
         pieces.push((
             p.film,
             PlacementReport {
@@ -850,6 +878,8 @@ pub struct RunOptions {
     pub force: bool,
     pub board_name: String,
     pub date: String,
+    /// Also write vector films (films-vector.pdf and one SVG per film).
+    pub vector: bool,
 }
 
 /// The whole job: films, layout, sheets, files. Returns the summary.
@@ -910,6 +940,11 @@ pub fn run(
         .map_err(|e| FilmsError::Output(e.to_string()))?;
     drop(pages);
     drop(pdf_pages_bitmaps);
+    if opts.vector {
+        progress("composing vector films");
+        crate::vector::write_vector_outputs(&staged, board, &films, &frame, &layout, profile)
+            .map_err(FilmsError::Output)?;
+    }
     let mut tooling = None;
     if profile.films.tooling_holes {
         if let Some(t) = &frame.targets {

@@ -21,3 +21,4 @@ pub mod process;
 pub mod raster;
 pub mod sheet;
 pub mod synth;
+pub mod vector;

@@ -98,6 +98,10 @@ struct FilmsArgs {
     /// per film at the screen's pixel grid) or film-service (one 1-bit TIFF per film)
     #[arg(long, value_parser = ["printer", "lcd", "film-service"])]
     device: Option<String>,
+    /// Also write vector films: films-vector.pdf (same sheets) and one SVG per film, with
+    /// the edge offset applied exactly instead of in whole pixels
+    #[arg(long)]
+    vector: bool,
 }
 
 #[derive(Args, Debug)]
@@ -307,6 +311,7 @@ fn films(a: FilmsArgs) -> Result<ExitCode, String> {
         force: a.force,
         board_name,
         date: a.date.clone().unwrap_or_else(today),
+        vector: a.vector,
     };
     let progress = |m: &str| bar.set_message(m.to_string());
     let summary = umbra::films::run(&board, &profile, job.as_ref(), &opts, &progress)

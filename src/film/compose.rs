@@ -159,7 +159,11 @@ fn drill_hits(drills: &[&DrillFile]) -> Vec<Hit> {
 }
 
 /// The drill-centre marks (absence of material) for `style`.
-fn drill_mark_shapes(drills: &[&DrillFile], style: DrillMarkStyle, pilot_mm: f64) -> Vec<Shape> {
+pub(crate) fn drill_mark_shapes(
+    drills: &[&DrillFile],
+    style: DrillMarkStyle,
+    pilot_mm: f64,
+) -> Vec<Shape> {
     let mut shapes = Vec::new();
     if style == DrillMarkStyle::None {
         return shapes;
@@ -204,7 +208,7 @@ fn drill_mark_shapes(drills: &[&DrillFile], style: DrillMarkStyle, pilot_mm: f64
 }
 
 /// The artwork (material) around the board: targets and label.
-fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
+pub(crate) fn artwork_shapes(job: &FilmJob<'_>) -> Vec<Shape> {
     let o = job.opts;
     let mut shapes = Vec::new();
     if let Some(t) = &job.frame.targets {
@@ -304,7 +308,7 @@ fn objects(shapes: Vec<Shape>, polarity: Polarity) -> Vec<Object> {
 
 /// How far beyond the board's extents layer artwork is kept, mm (the outline is drawn with a
 /// line whose width reaches outside the nominal edge).
-const BOARD_CLIP_MARGIN_MM: f64 = 0.5;
+pub(crate) const BOARD_CLIP_MARGIN_MM: f64 = 0.5;
 
 /// Clears every pixel whose centre lies outside `keep` (board mm).
 fn clear_outside(bitmap: &mut Bitmap, map: &DeviceMap, keep: &Bounds) {

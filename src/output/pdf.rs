@@ -104,6 +104,19 @@ pub enum LineArt {
         to: (f64, f64),
         width_pt: f64,
     },
+    /// Black filled area with holes: every ring is one closed subpath of a single path
+    /// (ISO 32000-1 §8.5.2.1), filled with the even-odd rule (`f*`) or the non-zero rule
+    /// (`f`), §8.5.3.3. Ring coordinates are in the path's own units, mapped onto the page
+    /// by `matrix` (`cm`, §8.3.4: `x' = a·x + c·y + e`, `y' = b·x + d·y + f`), and written
+    /// with `decimals` digits after the point. With `clip_pt` (x0, y0, x1, y1, page points)
+    /// only the part inside that rectangle is painted (clipping path, §8.5.4).
+    Area {
+        rings: Vec<Vec<(f64, f64)>>,
+        matrix: [f64; 6],
+        even_odd: bool,
+        decimals: usize,
+        clip_pt: Option<[f64; 4]>,
+    },
 }
 
 /// One page of a sheet.
@@ -216,6 +229,13 @@ pub fn pdf_bytes(pages: &[PdfPage<'_>]) -> Result<Vec<u8>, String> {
                             content.push_str(" h f\n");
                         }
                     }
+                    LineArt::Area {
+                        rings,
+                        matrix,
+                        even_odd,
+                        decimals,
+                        clip_pt,
+                    } => write_area(&mut content, rings, matrix, *even_odd, *decimals, clip_pt),
                     LineArt::Line { from, to, width_pt } => {
                         let _ = writeln!(
                             content,
@@ -274,6 +294,72 @@ fn num(v: f64) -> String {
         "0".into()
     } else {
         s.to_string()
+    }
+}
+
+/// Content-stream operators for [`LineArt::Area`], in their own graphics state (q … Q).
+fn write_area(
+    content: &mut String,
+    rings: &[Vec<(f64, f64)>],
+    m: &[f64; 6],
+    even_odd: bool,
+    decimals: usize,
+    clip: &Option<[f64; 4]>,
+) {
+    if rings.iter().all(|r| r.len() < 3) {
+        return;
+    }
+    content.push_str("q\n");
+    if let Some([x0, y0, x1, y1]) = clip {
+        // A rectangle clipping path: re, W, n (§8.5.4, table 60).
+        let _ = writeln!(
+            content,
+            "{} {} {} {} re W n",
+            num(*x0),
+            num(*y0),
+            num(x1 - x0),
+            num(y1 - y0)
+        );
+    }
+    let _ = writeln!(
+        content,
+        "{} {} {} {} {} {} cm",
+        num(m[0]),
+        num(m[1]),
+        num(m[2]),
+        num(m[3]),
+        num(m[4]),
+        num(m[5])
+    );
+    let d = decimals.min(9);
+    for ring in rings.iter().filter(|r| r.len() >= 3) {
+        for (i, &(x, y)) in ring.iter().enumerate() {
+            push_fixed(content, x, d);
+            content.push(' ');
+            push_fixed(content, y, d);
+            content.push_str(if i == 0 { " m\n" } else { " l\n" });
+        }
+        content.push_str("h\n");
+    }
+    content.push_str(if even_odd { "f*\nQ\n" } else { "f\nQ\n" });
+}
+
+/// A PDF real with `d` decimals, trailing zeros dropped (no exponent, §7.3.3).
+fn push_fixed(out: &mut String, v: f64, d: usize) {
+    let v = if v.is_finite() { v } else { 0.0 };
+    let start = out.len();
+    let _ = write!(out, "{v:.d$}");
+    if d > 0 {
+        while out.ends_with('0') {
+            out.pop();
+        }
+        if out.ends_with('.') {
+            out.pop();
+        }
+    }
+    if &out[start..] == "-0" || out.len() == start {
+        out.truncate(start);
+        out.push('0');
     }
 }
 

@@ -1,0 +1,46 @@
+//! Vector composition benchmark on the deterministic synthetic bench board
+//! (`umbra::synth::bench_board(1)`, ~50,000 objects per copper layer over 100 × 160 mm).
+//!
+//! Run with `cargo bench --bench vector`. Prints, best of a few runs, the time to compose
+//! the top copper film as polygons (flatten, booleans in order, drill marks, artwork,
+//! polarity, edge offset) without and with a 50 µm edge offset, and the vertex count.
+//! Target: at most 1 s (docs/vector.md).
+
+use std::time::Instant;
+use umbra::films::make_films;
+use umbra::limits::Limits;
+use umbra::load::load_paths;
+use umbra::process::Profile;
+use umbra::vector::page::vector_film_for;
+use umbra::vector::VectorOptions;
+
+fn main() {
+    let dir = tempfile::tempdir().expect("temporary folder");
+    for (name, text) in umbra::synth::bench_board(1).files {
+        std::fs::write(dir.path().join(name), text).expect("write bench file");
+    }
+    let board = load_paths(&[dir.path().to_path_buf()], &Limits::default()).expect("load");
+    for undercut in [0.0, 50.0] {
+        let mut profile = Profile::default();
+        profile.process.undercut_um = undercut;
+        let (films, frame, _) =
+            make_films(&board, &profile, None, "bench", "2026-01-01").expect("films");
+        let top = films
+            .iter()
+            .find(|f| f.key == "copper-top")
+            .expect("top copper");
+        let mut best = f64::INFINITY;
+        let mut vertices = 0;
+        for _ in 0..3 {
+            let t = Instant::now();
+            let vf = vector_film_for(&board, top, &frame, &profile, &VectorOptions::default())
+                .expect("vector film");
+            best = best.min(t.elapsed().as_secs_f64());
+            vertices = vf.black.iter().flatten().map(|r| r.len()).sum::<usize>();
+        }
+        println!(
+            "vector compose, top copper, edge offset {:+.1} µm: {:.3} s (best of 3), {} vertices",
+            top.recipe.edge_offset_um, best, vertices
+        );
+    }
+}

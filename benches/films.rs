@@ -116,7 +116,7 @@ fn top_copper_film(board: &Board, dpi: f64, offset_um: f64, png: &Path) -> (usiz
         label: false,
         ..Default::default()
     };
-    let frame = BoardFrame::new(image.image.bounds(), (0.0, 0.0), &art);
+    let frame = BoardFrame::new(image.image.bounds(), (0.0, 0.0), (0.0, 0.0), &art);
     let job = FilmJob {
         image: &image.image,
         recipe: &recipe,
@@ -124,6 +124,8 @@ fn top_copper_film(board: &Board, dpi: f64, offset_um: f64, png: &Path) -> (usiz
         frame: &frame,
         label: Vec::new(),
         label_mirrored: false,
+        face: None,
+        stack_targets: false,
         opts: &art,
     };
     let film = compose::render_film(&job, profile.drill_marks.min_annular_ring_mm);
@@ -236,6 +238,7 @@ fn main() {
             force: false,
             board_name: "bench".into(),
             date: "2026-01-01".into(),
+            vector: false,
         };
         films::run(&board, &profile, None, &opts, &|_| {}).expect("films run")
     });

@@ -33,6 +33,7 @@ fn every_real_board_makes_a_film_set() {
             force: false,
             board_name: name.clone(),
             date: "2025-01-01".into(),
+            vector: false,
         };
         let summary = match run(&board, &profile, None, &opts, &|_| {}) {
             Ok(s) => s,

@@ -104,7 +104,7 @@ pub fn single_quadrant_center(
             continue;
         }
         let err = (c.dist(start) - c.dist(end)).abs();
-        if best.map_or(true, |(e, _)| err < e) {
+        if best.is_none_or(|(e, _)| err < e) {
             best = Some((err, c));
         }
     }

@@ -404,7 +404,7 @@ pub fn shape_is_finite(shape: &Shape) -> bool {
             end,
             arc,
             width,
-        } => pf(start) && pf(end) && width.is_finite() && arc.map_or(true, |(c, _)| pf(&c)),
+        } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
         Shape::Polygon(c) => {
             pf(&c.start)
                 && c.segments.iter().all(|s| match s {

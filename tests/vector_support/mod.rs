@@ -39,7 +39,7 @@ pub fn bare_artwork() -> ArtworkOptions {
 }
 
 pub fn frame(board: Bounds, opts: &ArtworkOptions) -> BoardFrame {
-    BoardFrame::new(board, (0.0, 0.0), opts)
+    BoardFrame::new(board, (0.0, 0.0), (0.0, 0.0), opts)
 }
 
 pub fn job<'a>(
@@ -55,6 +55,8 @@ pub fn job<'a>(
         frame,
         label: Vec::new(),
         label_mirrored: false,
+        face: None,
+        stack_targets: false,
         opts,
     }
 }

@@ -280,9 +280,7 @@ fn is_finite(shape: &Shape) -> bool {
             end,
             arc,
             width,
-        } => {
-            point(start) && point(end) && arc.map_or(true, |(c, _)| point(&c)) && width.is_finite()
-        }
+        } => point(start) && point(end) && arc.is_none_or(|(c, _)| point(&c)) && width.is_finite(),
         Shape::Polygon(c) => {
             point(&c.start)
                 && c.segments.iter().all(|s| match s {

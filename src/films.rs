@@ -282,6 +282,8 @@ pub struct Summary {
     pub pdf: String,
     pub tooling_holes: Option<String>,
     pub warnings: Vec<String>,
+    /// The process check of the films and the proof picture (`proof.png`).
+    pub check: crate::check::CheckReport,
 }
 
 /// Height reserved above every piece on a sheet for its caption, mm.
@@ -721,6 +723,19 @@ pub fn run(
     progress("rendering films");
     let (films, frame, mut warnings) =
         make_films(board, profile, job, &opts.board_name, &opts.date)?;
+    progress("checking films");
+    let mut check = crate::check::check_films(&films, board, &frame.board, &profile.limits);
+    crate::proof::write_board_proof(
+        &staged.path("proof.png"),
+        "proof.png",
+        &opts.board_name,
+        &films,
+        board,
+        &frame,
+        profile.artwork.target_size_mm,
+        &mut check,
+    )
+    .map_err(|e| FilmsError::Output(e.to_string()))?;
     let layout = lay_out(&films, profile)?;
     let mut reports: Vec<FilmReport> = films.iter().map(report_of).collect();
     let mut sheets = Vec::new();
@@ -794,6 +809,7 @@ pub fn run(
         pdf: "films.pdf".into(),
         tooling_holes: tooling,
         warnings,
+        check,
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;
@@ -881,6 +897,8 @@ pub fn summary_text(s: &Summary, out: &Path) -> String {
             .map(|t| format!(", {t}"))
             .unwrap_or_default()
     ));
+    out_s.push('\n');
+    out_s.push_str(&crate::check::check_text(&s.check));
     let n: usize = s.warnings.len();
     if n > 0 {
         out_s.push_str(&format!("\n{n} warning(s):\n"));

@@ -3,6 +3,7 @@
 //! The pipeline (see `docs/architecture.md`): load → parse/interpret → plan → layout →
 //! render → write. Each stage knows only its neighbours.
 
+pub mod check;
 pub mod diag;
 pub mod excellon;
 pub mod film;
@@ -16,6 +17,7 @@ pub mod limits;
 pub mod load;
 pub mod output;
 pub mod process;
+pub mod proof;
 pub mod raster;
 pub mod sheet;
 pub mod synth;

@@ -41,6 +41,8 @@ enum Command {
         #[arg(long)]
         dump: bool,
     },
+    /// Check the films against the process limits and draw a proof picture
+    Check(umbra::check::cli::CheckArgs),
     /// Process profiles
     #[command(subcommand)]
     Profile(ProfileCommand),
@@ -207,6 +209,7 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
         }
         Command::Films(a) => films(a, &limits),
         Command::Render(a) => render(a, &limits),
+        Command::Check(a) => umbra::check::cli::run(a, &limits),
         Command::Profile(ProfileCommand::Init { file, force }) => {
             if file.exists() && !force {
                 return Err(format!(

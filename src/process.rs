@@ -177,6 +177,7 @@ pub struct Profile {
     pub films: FilmsSection,
     pub sheet: crate::sheet::SheetSpec,
     pub artwork: crate::film::compose::ArtworkOptions,
+    pub limits: crate::check::ProcessLimits,
 }
 
 /// A profile that could not be used.
@@ -279,7 +280,7 @@ impl Profile {
                 return Err(format!("{k} = {v} must be between {lo} and {hi}"));
             }
         }
-        Ok(())
+        self.limits.validate()
     }
 
     pub fn dpi_x(&self) -> f64 {

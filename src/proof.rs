@@ -1,0 +1,581 @@
+//! The proof picture: a small colour PNG of the board as the films will make it, seen from the
+//! top, with the process check's findings circled and numbered as in the table.
+//!
+//! # Colours
+//! From the Okabe–Ito palette, chosen to stay apart for the common forms of colour blindness;
+//! nothing depends on red against green. Layers also differ in lightness, and every colour is
+//! named in the legend:
+//!
+//! | what | colour |
+//! |---|---|
+//! | top copper | orange #E69F00 |
+//! | bottom copper | blue #0072B2 |
+//! | copper on both sides | bluish green #009E73 |
+//! | drill holes | white with a black rim |
+//! | board outline | dark grey #404040 |
+//! | registration targets | reddish purple #CC79A7 |
+//! | findings | vermillion ring #D55E00 on a white halo, black number on white |
+//!
+//! Copper is drawn from the *films* (after compensation and drill marks), by sampling each
+//! film a few times per picture pixel and mixing the colours by coverage, so a track thinner
+//! than a picture pixel still shows.
+//!
+//! PNG specification (W3C, second edition): §11.2.2 IHDR colour type 2 (truecolour), bit
+//! depth 8; §11.3.5.3 pHYs, unit metre.
+
+use crate::check::{CheckReport, Finding};
+use crate::excellon::DrillFile;
+use crate::film::font::{text_shapes, text_width_mm};
+use crate::image::{Bounds, Contour, LayerImage, Object, Point, Polarity, Shape, Turn};
+use crate::output::{write_atomically, OutputError};
+use crate::raster::{render, Affine, Bitmap, DeviceMap};
+use rayon::prelude::*;
+use serde::Serialize;
+use std::path::Path;
+
+type Rgb = [u8; 3];
+pub const WHITE: Rgb = [255, 255, 255];
+pub const SUBSTRATE: Rgb = [236, 234, 224];
+pub const TOP: Rgb = [0xE6, 0x9F, 0x00];
+pub const BOTTOM: Rgb = [0x00, 0x72, 0xB2];
+pub const BOTH: Rgb = [0x00, 0x9E, 0x73];
+pub const OUTLINE: Rgb = [0x40, 0x40, 0x40];
+pub const TARGET: Rgb = [0xCC, 0x79, 0xA7];
+pub const MARKER: Rgb = [0xD5, 0x5E, 0x00];
+pub const BLACK: Rgb = [0, 0, 0];
+
+/// Largest side of the picture in pixels; larger boards get fewer pixels per mm.
+const MAX_SIDE_PX: f64 = 12_000.0;
+const LEGEND_CAP_MM: f64 = 2.0;
+const MARGIN_MM: f64 = 2.0;
+
+/// Where a finding's marker is on the picture.
+#[derive(Debug, Clone, Serialize)]
+pub struct ProofMarker {
+    pub number: usize,
+    /// Centre, picture pixels (x right, y down, pixel centres at +0.5).
+    pub center_px: [f64; 2],
+    pub radius_px: f64,
+}
+
+/// What was written.
+#[derive(Debug, Clone, Serialize)]
+pub struct ProofInfo {
+    pub file: String,
+    pub size_px: [usize; 2],
+    pub px_per_mm: f64,
+    /// Board mm → picture pixels.
+    pub board_to_px: Affine,
+    pub markers: Vec<ProofMarker>,
+}
+
+/// One copper film as the proof needs it.
+#[derive(Debug, Clone, Copy)]
+pub struct CopperFilm<'a> {
+    pub film: &'a Bitmap,
+    pub map: &'a DeviceMap,
+    pub black_is_material: bool,
+}
+
+/// Everything drawn on the proof.
+#[derive(Debug, Clone)]
+pub struct ProofInput<'a> {
+    pub title: String,
+    pub board: Bounds,
+    pub top: Option<CopperFilm<'a>>,
+    pub bottom: Option<CopperFilm<'a>>,
+    pub outline: Option<&'a LayerImage>,
+    pub drills: &'a [&'a DrillFile],
+    pub targets: Option<[Point; 3]>,
+    pub target_size_mm: f64,
+    pub findings: &'a [Finding],
+    pub px_per_mm: f64,
+}
+
+/// A drawn proof: 8-bit RGB rows, top to bottom.
+#[derive(Debug, Clone)]
+pub struct Proof {
+    pub width: usize,
+    pub height: usize,
+    pub rgb: Vec<u8>,
+    pub info: ProofInfo,
+}
+
+impl Proof {
+    /// The colour of pixel (x, y).
+    pub fn pixel(&self, x: usize, y: usize) -> Option<Rgb> {
+        (x < self.width && y < self.height).then(|| {
+            let i = (y * self.width + x) * 3;
+            [self.rgb[i], self.rgb[i + 1], self.rgb[i + 2]]
+        })
+    }
+}
+
+fn objects(shapes: Vec<Shape>) -> Vec<Object> {
+    shapes
+        .into_iter()
+        .map(|shape| Object {
+            polarity: Polarity::Dark,
+            shape,
+        })
+        .collect()
+}
+
+fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Shape {
+    Shape::Polygon(Contour::from_points(&[
+        Point::new(x0, y0),
+        Point::new(x1, y0),
+        Point::new(x1, y1),
+        Point::new(x0, y1),
+    ]))
+}
+
+fn ring(center: Point, r: f64, width: f64) -> Shape {
+    let start = Point::new(center.x + r, center.y);
+    Shape::Stroke {
+        start,
+        end: start,
+        arc: Some((center, Turn::CounterClockwise)),
+        width,
+    }
+}
+
+fn legend_entries() -> [(&'static str, Rgb); 7] {
+    [
+        ("top copper", TOP),
+        ("bottom copper", BOTTOM),
+        ("copper on both sides", BOTH),
+        ("drill hole", WHITE),
+        ("board outline", OUTLINE),
+        ("registration target", TARGET),
+        ("finding (number as in the table)", MARKER),
+    ]
+}
+
+/// The picture canvas.
+struct Canvas {
+    map: DeviceMap,
+    rgb: Vec<u8>,
+}
+
+impl Canvas {
+    fn paint(&mut self, shapes: Vec<Shape>, colour: Rgb) {
+        if shapes.is_empty() {
+            return;
+        }
+        let mask = render(&objects(shapes), &self.map);
+        let w = self.map.width;
+        for y in 0..mask.height() {
+            for (wi, &word) in mask.row(y).iter().enumerate() {
+                let mut bits = word;
+                while bits != 0 {
+                    let x = wi * 64 + bits.leading_zeros() as usize;
+                    bits &= !(1u64 << (63 - (x % 64)));
+                    let i = (y * w + x) * 3;
+                    self.rgb[i..i + 3].copy_from_slice(&colour);
+                }
+            }
+        }
+    }
+}
+
+fn mix(a: Rgb, b: Rgb, t: f64) -> Rgb {
+    let f = |x: u8, y: u8| (x as f64 + (y as f64 - x as f64) * t).round() as u8;
+    [f(a[0], b[0]), f(a[1], b[1]), f(a[2], b[2])]
+}
+
+/// Fraction of samples of pixel (`x`, `y`) of `map` that fall on material of `film`.
+fn coverage(
+    film: &CopperFilm<'_>,
+    map: &DeviceMap,
+    keep: &Bounds,
+    x: usize,
+    y: usize,
+    n: usize,
+) -> f64 {
+    let mut hits = 0;
+    for j in 0..n {
+        for i in 0..n {
+            let p = map.to_mm(
+                x as f64 + (i as f64 + 0.5) / n as f64,
+                y as f64 + (j as f64 + 0.5) / n as f64,
+            );
+            if p.x < keep.min_x || p.x > keep.max_x || p.y < keep.min_y || p.y > keep.max_y {
+                continue;
+            }
+            let (fx, fy) = film.map.to_px(p);
+            if fx < 0.0 || fy < 0.0 {
+                continue;
+            }
+            let bit = film.film.get(fx as usize, fy as usize);
+            if fx < film.film.width() as f64
+                && fy < film.film.height() as f64
+                && bit == film.black_is_material
+            {
+                hits += 1;
+            }
+        }
+    }
+    hits as f64 / (n * n) as f64
+}
+
+/// Draws the proof picture.
+pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
+    let b = input.board;
+    let mut area = b.grown(MARGIN_MM);
+    if let Some(t) = &input.targets {
+        for p in t {
+            area.add_circle(*p, input.target_size_mm / 2.0 + 1.0);
+        }
+    }
+    let entries = legend_entries();
+    let cap = LEGEND_CAP_MM;
+    let n_findings = input.findings.len();
+    let lines = [
+        input.title.clone(),
+        "as the films will make it, seen from the top".to_string(),
+        match n_findings {
+            0 => "no findings".to_string(),
+            n => format!("{n} finding(s), circled"),
+        },
+    ];
+    let text_w = entries
+        .iter()
+        .map(|e| text_width_mm(e.0, cap) + 8.0)
+        .chain(lines.iter().map(|l| text_width_mm(l, cap)))
+        .fold(0.0f64, f64::max);
+    let legend_w = text_w + 2.0 * MARGIN_MM;
+    let legend_h = (lines.len() + entries.len()) as f64 * cap * 2.2 + 3.0 * MARGIN_MM;
+    let total_w = area.width() + legend_w;
+    let total_h = area.height().max(legend_h);
+    let mut ppm = input.px_per_mm;
+    if total_w.max(total_h) * ppm > MAX_SIDE_PX {
+        ppm = MAX_SIDE_PX / total_w.max(total_h);
+    }
+    let (w, h) = (
+        (total_w * ppm).ceil().max(1.0) as usize,
+        (total_h * ppm).ceil().max(1.0) as usize,
+    );
+    let origin = Point::new(area.min_x, area.max_y - h as f64 / ppm);
+    let map = DeviceMap::new(origin, w, h, ppm * 25.4, ppm * 25.4);
+    let mut canvas = Canvas {
+        map,
+        rgb: vec![255; w * h * 3],
+    };
+    canvas.paint(vec![rect(b.min_x, b.min_y, b.max_x, b.max_y)], SUBSTRATE);
+
+    // Copper, by coverage.
+    let keep = b.grown(0.5);
+    let sub = |f: &Option<CopperFilm<'_>>| {
+        f.map(|f| (f.map.px_per_mm_x() / ppm).round().clamp(1.0, 4.0) as usize)
+    };
+    let (nt, nb) = (sub(&input.top), sub(&input.bottom));
+    let (ky0, ky1) = {
+        let (_, a) = map.to_px(Point::new(0.0, keep.max_y));
+        let (_, c) = map.to_px(Point::new(0.0, keep.min_y));
+        (
+            a.floor().max(0.0) as usize,
+            (c.ceil().max(0.0) as usize).min(h),
+        )
+    };
+    let (kx0, kx1) = {
+        let (a, _) = map.to_px(Point::new(keep.min_x, 0.0));
+        let (c, _) = map.to_px(Point::new(keep.max_x, 0.0));
+        (
+            a.floor().max(0.0) as usize,
+            (c.ceil().max(0.0) as usize).min(w),
+        )
+    };
+    canvas
+        .rgb
+        .par_chunks_mut(w * 3)
+        .enumerate()
+        .filter(|(y, _)| (ky0..ky1).contains(y))
+        .for_each(|(y, row)| {
+            for x in kx0..kx1 {
+                let ft = input
+                    .top
+                    .as_ref()
+                    .map_or(0.0, |f| coverage(f, &map, &keep, x, y, nt.unwrap_or(1)));
+                let fb = input
+                    .bottom
+                    .as_ref()
+                    .map_or(0.0, |f| coverage(f, &map, &keep, x, y, nb.unwrap_or(1)));
+                if ft == 0.0 && fb == 0.0 {
+                    continue;
+                }
+                let px = &mut row[x * 3..x * 3 + 3];
+                let mut c = [px[0], px[1], px[2]];
+                c = mix(c, TOP, ft * (1.0 - fb));
+                c = mix(c, BOTTOM, fb * (1.0 - ft));
+                c = mix(c, BOTH, ft * fb);
+                px.copy_from_slice(&c);
+            }
+        });
+
+    // Outline, holes, targets.
+    let line = (1.5 / ppm).max(0.1);
+    match input.outline {
+        Some(img) => canvas.paint(
+            img.objects
+                .iter()
+                .filter(|o| o.polarity == Polarity::Dark)
+                .map(|o| match &o.shape {
+                    Shape::Stroke {
+                        start,
+                        end,
+                        arc,
+                        width,
+                    } => Shape::Stroke {
+                        start: *start,
+                        end: *end,
+                        arc: *arc,
+                        width: width.max(line),
+                    },
+                    s => s.clone(),
+                })
+                .collect(),
+            OUTLINE,
+        ),
+        None => {
+            let (x0, y0, x1, y1) = (b.min_x, b.min_y, b.max_x, b.max_y);
+            let seg = |a: Point, c: Point| Shape::Stroke {
+                start: a,
+                end: c,
+                arc: None,
+                width: line,
+            };
+            let (p00, p10, p11, p01) = (
+                Point::new(x0, y0),
+                Point::new(x1, y0),
+                Point::new(x1, y1),
+                Point::new(x0, y1),
+            );
+            canvas.paint(
+                vec![seg(p00, p10), seg(p10, p11), seg(p11, p01), seg(p01, p00)],
+                OUTLINE,
+            );
+        }
+    }
+    let mut holes = Vec::new();
+    let mut rims = Vec::new();
+    for d in input.drills {
+        for hole in &d.holes {
+            if let Some(t) = d.tools.get(hole.tool) {
+                let r = t.diameter_mm / 2.0;
+                holes.push(Shape::Disc {
+                    center: hole.at,
+                    diameter: 2.0 * r,
+                });
+                rims.push(ring(hole.at, r, line));
+            }
+        }
+        for s in &d.slots {
+            if let Some(t) = d.tools.get(s.tool) {
+                for pair in s.path.windows(2) {
+                    holes.push(Shape::Stroke {
+                        start: pair[0],
+                        end: pair[1],
+                        arc: None,
+                        width: t.diameter_mm,
+                    });
+                }
+            }
+        }
+    }
+    canvas.paint(rims, BLACK);
+    canvas.paint(holes, WHITE);
+    if let Some(t) = &input.targets {
+        let shapes = t
+            .iter()
+            .flat_map(|p| {
+                crate::film::marks::target_shapes(*p, input.target_size_mm, line.max(0.2))
+            })
+            .collect();
+        canvas.paint(shapes, TARGET);
+    }
+
+    // Findings: a vermillion ring on a white halo, and the number on a white box.
+    let mut markers = Vec::new();
+    let (mut halos, mut rings, mut boxes, mut numbers) = (vec![], vec![], vec![], vec![]);
+    let num_cap = 1.6f64.max(12.0 / ppm);
+    for f in input.findings {
+        let r = (f.extent_mm[0].max(f.extent_mm[1]) / 2.0 + 0.6).clamp(1.0, 6.0);
+        let rw = (0.3f64).max(3.0 / ppm);
+        halos.push(ring(f.at_mm, r, rw * 3.0));
+        rings.push(ring(f.at_mm, r, rw));
+        let text = f.number.to_string();
+        let at = Point::new(f.at_mm.x + r * 0.8, f.at_mm.y + r * 0.8);
+        let tw = text_width_mm(&text, num_cap);
+        boxes.push(rect(
+            at.x - 0.3,
+            at.y - 0.4,
+            at.x + tw + 0.3,
+            at.y + num_cap + 0.4,
+        ));
+        numbers.extend(text_shapes(&text, at, num_cap, num_cap * 0.16, false, 0.0));
+        let (cx, cy) = map.to_px(f.at_mm);
+        markers.push(ProofMarker {
+            number: f.number,
+            center_px: [cx, cy],
+            radius_px: r * ppm,
+        });
+    }
+    canvas.paint(halos, WHITE);
+    canvas.paint(rings, MARKER);
+    canvas.paint(boxes, WHITE);
+    canvas.paint(numbers, BLACK);
+
+    // Legend, right of the board.
+    let lx = area.max_x + MARGIN_MM;
+    let mut y = area.max_y - MARGIN_MM - cap;
+    let mut text = Vec::new();
+    for l in &lines {
+        text.extend(text_shapes(
+            l,
+            Point::new(lx, y),
+            cap,
+            cap * 0.14,
+            false,
+            0.0,
+        ));
+        y -= cap * 2.2;
+    }
+    y -= cap;
+    for (label, colour) in entries {
+        let (sx0, sx1) = (lx, lx + 6.0);
+        let (sy0, sy1) = (y - 0.2, y + cap + 0.2);
+        let mid = Point::new(0.5 * (sx0 + sx1), 0.5 * (sy0 + sy1));
+        match label {
+            "drill hole" => {
+                canvas.paint(vec![ring(mid, 1.0, line.max(0.15))], BLACK);
+                canvas.paint(
+                    vec![Shape::Disc {
+                        center: mid,
+                        diameter: 2.0,
+                    }],
+                    WHITE,
+                );
+            }
+            "board outline" => canvas.paint(
+                vec![Shape::Stroke {
+                    start: Point::new(sx0, mid.y),
+                    end: Point::new(sx1, mid.y),
+                    arc: None,
+                    width: 0.3,
+                }],
+                OUTLINE,
+            ),
+            "registration target" => {
+                canvas.paint(crate::film::marks::target_shapes(mid, 2.6, 0.2), TARGET)
+            }
+            "finding (number as in the table)" => {
+                canvas.paint(vec![ring(mid, 1.1, 0.9)], WHITE);
+                canvas.paint(vec![ring(mid, 1.1, 0.3)], MARKER);
+            }
+            _ => canvas.paint(vec![rect(sx0, sy0, sx1, sy1)], colour),
+        }
+        text.extend(text_shapes(
+            label,
+            Point::new(lx + 8.0, y),
+            cap,
+            cap * 0.14,
+            false,
+            0.0,
+        ));
+        y -= cap * 2.2;
+    }
+    canvas.paint(text, BLACK);
+
+    Proof {
+        width: w,
+        height: h,
+        rgb: canvas.rgb,
+        info: ProofInfo {
+            file: String::new(),
+            size_px: [w, h],
+            px_per_mm: ppm,
+            board_to_px: map.affine(),
+            markers,
+        },
+    }
+}
+
+/// Writes the proof as an 8-bit RGB PNG with its resolution in pHYs, atomically.
+pub fn write_proof(path: &Path, proof: &Proof) -> Result<(), OutputError> {
+    write_atomically(path, |out| {
+        let err = |e: png::EncodingError| match e {
+            png::EncodingError::IoError(source) => OutputError::Io {
+                path: path.to_path_buf(),
+                source,
+            },
+            other => OutputError::Png {
+                path: path.to_path_buf(),
+                message: other.to_string(),
+            },
+        };
+        let mut enc = png::Encoder::new(out, proof.width as u32, proof.height as u32);
+        enc.set_color(png::ColorType::Rgb);
+        enc.set_depth(png::BitDepth::Eight);
+        enc.set_compression(png::Compression::Fast);
+        let ppm = (proof.info.px_per_mm * 1000.0).round() as u32;
+        enc.set_pixel_dims(Some(png::PixelDimensions {
+            xppu: ppm,
+            yppu: ppm,
+            unit: png::Unit::Meter,
+        }));
+        let mut writer = enc.write_header().map_err(err)?;
+        writer.write_image_data(&proof.rgb).map_err(err)?;
+        writer.finish().map_err(err)
+    })
+}
+
+/// Draws and writes the proof of a board whose films were made by
+/// [`crate::films::make_films`]; records it in `report.proof`.
+#[allow(clippy::too_many_arguments)]
+pub fn write_board_proof(
+    path: &Path,
+    file_name: &str,
+    title: &str,
+    films: &[crate::films::MadeFilm],
+    board: &crate::load::Board,
+    frame: &crate::film::compose::BoardFrame,
+    target_size_mm: f64,
+    report: &mut CheckReport,
+) -> Result<(), OutputError> {
+    use crate::layers::{LayerFunction, Side};
+    let copper = |side: Side| {
+        films
+            .iter()
+            .find(|f| f.id.function == LayerFunction::Copper && f.id.side == side)
+            .map(|f| CopperFilm {
+                film: &f.rendered.bitmap,
+                map: &f.rendered.map,
+                black_is_material: f.recipe.black_is_material,
+            })
+    };
+    let outline = board.files.iter().find_map(|f| match (&f.content, f.id) {
+        (crate::load::Content::Gerber(g), Some(id)) if id.function == LayerFunction::Outline => {
+            Some(&g.image)
+        }
+        _ => None,
+    });
+    let drills = crate::films::drill_files(board);
+    let input = ProofInput {
+        title: title.to_string(),
+        board: frame.board,
+        top: copper(Side::Top),
+        bottom: copper(Side::Bottom),
+        outline,
+        drills: &drills,
+        targets: frame.targets,
+        target_size_mm,
+        findings: &report.findings,
+        px_per_mm: report.limits.proof_px_per_mm,
+    };
+    let mut proof = draw_proof(&input);
+    proof.info.file = file_name.to_string();
+    write_proof(path, &proof)?;
+    report.proof = Some(proof.info);
+    Ok(())
+}

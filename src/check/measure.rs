@@ -2,15 +2,13 @@
 //! connected components, and the local width of a thin feature.
 //!
 //! # Local width (the chord method)
-//! The width of a feature at pixel `p` is the length of the chord through `p` along the
-//! direction from `p` to its nearest pixel outside the feature. For a band of constant width
-//! (a track, a gap) every pixel's nearest outside pixel lies straight across the band edge, so
-//! every pixel of a cross-section gives the same chord: the band's width. At a convex corner of
-//! a wide shape the nearest outside pixel is across the nearer edge and the chord runs through
-//! the whole shape, so corners (which an opening also removes) do not count as thin. The chord
-//! ends are found where the line leaves the feature's pixels (pixel `(i, j)` covers
-//! `[i, i+1) × [j, j+1)`), refined by bisection, so an axis-aligned band of `n` pixels
-//! measures exactly `n` pixels.
+//! The width of a feature at pixel `p` is the shortest chord through `p`'s centre across the
+//! feature, over 9 directions within ±50° of the direction to `p`'s nearest outside pixel.
+//! Across a band of constant width (a track, a gap) every pixel
+//! gives the band's width (the perpendicular chord). The chord ends are found where the line
+//! leaves the feature's pixels (pixel `(i, j)` covers `[i, i+1) × [j, j+1)`), refined by
+//! bisection, so an axis-aligned band of `n` pixels measures exactly `n` pixels. Corners are
+//! short across too, so callers measure only residue that matters (see `check::Keep`).
 
 use crate::raster::Bitmap;
 
@@ -302,8 +300,8 @@ impl Probe<'_> {
         self.bm.get(x as usize, y as usize)
     }
 
-    /// The offset (dx, dy) of the nearest pixel not in the feature, searched up to
-    /// `max_mm` away. Distances are between pixel centres, in mm.
+    /// The offset (dx, dy) of the nearest pixel not in the feature and its distance (pixel
+    /// centre to pixel centre, mm), searched up to `max_mm` away.
     pub fn nearest_outside(&self, x: i64, y: i64, max_mm: f64) -> Option<(i64, i64, f64)> {
         let step = self.mm_x.min(self.mm_y);
         let rings = (max_mm / step).ceil() as i64 + 1;
@@ -330,53 +328,80 @@ impl Probe<'_> {
                 break;
             }
         }
-        best.filter(|b| b.2 <= max_mm + step)
+        best
     }
 
     /// The local width (mm) at pixel (`x`, `y`) by the chord method (module docs), or `None`
-    /// when it exceeds `cap_mm` (the feature is not thin here).
+    /// when it is at least `cap_mm` (the feature is not thin here).
     pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
-        let (dx, dy, d) = self.nearest_outside(x, y, cap_mm)?;
-        if d <= 0.0 {
-            return None;
-        }
-        // Unit direction in mm, then per mm of travel in pixels.
-        let (ux, uy) = (dx as f64 * self.mm_x / d, dy as f64 * self.mm_y / d);
-        let (px_per_mm_x, px_per_mm_y) = (ux / self.mm_x, uy / self.mm_y);
+        let (dx, dy, _) = self.nearest_outside(x, y, cap_mm / 2.0 + self.mm_x.max(self.mm_y))?;
+        let across = (dy as f64 * self.mm_y).atan2(dx as f64 * self.mm_x);
         let (cx, cy) = (x as f64 + 0.5, y as f64 + 0.5);
-        let at = |t: f64| {
-            self.inside(
-                (cx + t * px_per_mm_x).floor() as i64,
-                (cy + t * px_per_mm_y).floor() as i64,
-            )
-        };
         let step = 0.25 * self.mm_x.min(self.mm_y);
-        let exit = |sign: f64| -> Option<f64> {
-            let mut t = 0.0;
-            loop {
-                let next = t + step;
-                if next > cap_mm {
-                    return None;
-                }
-                if !at(sign * next) {
-                    let (mut lo, mut hi) = (t, next);
-                    for _ in 0..12 {
-                        let mid = 0.5 * (lo + hi);
-                        if at(sign * mid) {
-                            lo = mid;
-                        } else {
-                            hi = mid;
-                        }
+        let mut best = cap_mm;
+        for k in 0..CHORD_DIRECTIONS {
+            let a = across + CHORD_SPREAD * (k as f64 / (CHORD_DIRECTIONS - 1) as f64 * 2.0 - 1.0);
+            // Pixels per mm of travel along the direction.
+            let (vx, vy) = (a.cos() / self.mm_x, a.sin() / self.mm_y);
+            let at =
+                |t: f64| self.inside((cx + t * vx).floor() as i64, (cy + t * vy).floor() as i64);
+            // Distance to where the line leaves the feature, or None beyond `limit`.
+            let exit = |sign: f64, limit: f64| -> Option<f64> {
+                let mut t = 0.0;
+                loop {
+                    let next = t + step;
+                    if next > limit {
+                        return None;
                     }
-                    return Some(hi);
+                    if !at(sign * next) {
+                        let (mut lo, mut hi) = (t, next);
+                        for _ in 0..10 {
+                            let mid = 0.5 * (lo + hi);
+                            if at(sign * mid) {
+                                lo = mid;
+                            } else {
+                                hi = mid;
+                            }
+                        }
+                        return Some(hi);
+                    }
+                    t = next;
                 }
-                t = next;
+            };
+            let Some(a) = exit(1.0, best) else {
+                continue;
+            };
+            if let Some(b) = exit(-1.0, best - a) {
+                best = best.min(a + b);
             }
-        };
-        let width = exit(1.0)? + exit(-1.0)?;
-        (width <= cap_mm).then_some(width)
+        }
+        (best < cap_mm).then_some(best)
     }
 }
+
+impl Probe<'_> {
+    /// [`Probe::width_at`], raised to the largest width among the pixel's 8 neighbours in the
+    /// feature: a pixel at the tip of a stair step of a slanted edge is short across in every
+    /// direction near "across", its neighbours are not. `None` when any of them is not thin.
+    pub fn width_near(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
+        let mut w = self.width_at(x, y, cap_mm)?;
+        for dy in -1..=1 {
+            for dx in -1..=1 {
+                if (dx != 0 || dy != 0) && self.inside(x + dx, y + dy) {
+                    w = w.max(self.width_at(x + dx, y + dy, cap_mm)?);
+                }
+            }
+        }
+        Some(w)
+    }
+}
+
+/// Chord directions tried per pixel, spread evenly over ±`CHORD_SPREAD` about the direction
+/// to the nearest outside pixel: 12.5° apart, so a chord across a band is at most
+/// 1/cos 6.25° − 1 = 0.6 % longer than the band's width. Directions far from "across" are
+/// left out: along a slanted band they would slip out through the stair steps of its edge.
+const CHORD_DIRECTIONS: usize = 9;
+const CHORD_SPREAD: f64 = 50.0 * std::f64::consts::PI / 180.0;
 
 #[cfg(test)]
 mod tests {

@@ -225,7 +225,10 @@ fn the_proof_has_its_declared_size_and_circles_the_findings() {
     write_proof(&path, &proof).unwrap();
 
     // Read back with the png crate: the size is the declared one.
-    let decoder = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(&path).unwrap()));
+    let mut decoder =
+        png::Decoder::new(std::io::BufReader::new(std::fs::File::open(&path).unwrap()));
+    // Expand the palette to RGB (PNG spec §11.2.3: each index names a PLTE entry).
+    decoder.set_transformations(png::Transformations::EXPAND);
     let mut reader = decoder.read_info().unwrap();
     let mut buf = vec![0; reader.output_buffer_size().unwrap()];
     let info = reader.next_frame(&mut buf).unwrap();
@@ -237,7 +240,9 @@ fn the_proof_has_its_declared_size_and_circles_the_findings() {
     let pixel = |x: f64, y: f64| {
         let (x, y) = (x.floor() as usize, y.floor() as usize);
         let i = (y * info.width as usize + x) * 3;
-        [buf[i], buf[i + 1], buf[i + 2]]
+        let rgb = [buf[i], buf[i + 1], buf[i + 2]];
+        assert_eq!(Some(rgb), proof.pixel(x, y), "file and memory agree");
+        rgb
     };
     // The marker ring of finding 1 passes through its centre ± its radius.
     let m = &proof.info.markers[0];

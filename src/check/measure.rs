@@ -46,8 +46,7 @@ pub(crate) fn crop(src: &Bitmap, x0: usize, y0: usize, w: usize, h: usize) -> Bi
 pub(crate) fn and_not(a: &Bitmap, b: &Bitmap) -> Bitmap {
     let mut out = a.clone();
     for y in 0..out.height() {
-        let br = b.row(y).to_vec();
-        for (o, s) in out.row_mut(y).iter_mut().zip(br) {
+        for (o, s) in out.row_mut(y).iter_mut().zip(b.row(y)) {
             *o &= !s;
         }
     }
@@ -257,22 +256,21 @@ impl Labels {
         row.get(i).filter(|r| (r.0 as usize) <= x).map(|r| r.2)
     }
 
-    /// How many different labels (up to `max`) the 8-neighbours of `comp` carry.
+    /// How many different labels (up to `max`) the edge neighbours of `comp`'s pixels carry.
     pub fn touching(&self, comp: &Component, max: usize) -> usize {
         let mut seen: Vec<u32> = Vec::new();
         for &(x, y) in &comp.pixels {
-            for dy in -1i64..=1 {
-                for dx in -1i64..=1 {
-                    let (nx, ny) = (x as i64 + dx, y as i64 + dy);
-                    if nx < 0 || ny < 0 {
-                        continue;
-                    }
-                    if let Some(l) = self.at(nx as usize, ny as usize) {
-                        if !seen.contains(&l) {
-                            seen.push(l);
-                            if seen.len() >= max {
-                                return seen.len();
-                            }
+            // Edge neighbours suffice: a thin part meets what it joins along its ends.
+            for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
+                let (nx, ny) = (x as i64 + dx, y as i64 + dy);
+                if nx < 0 || ny < 0 {
+                    continue;
+                }
+                if let Some(l) = self.at(nx as usize, ny as usize) {
+                    if !seen.contains(&l) {
+                        seen.push(l);
+                        if seen.len() >= max {
+                            return seen.len();
                         }
                     }
                 }
@@ -307,11 +305,13 @@ impl Probe<'_> {
         let rings = (max_mm / step).ceil() as i64 + 1;
         let mut best: Option<(i64, i64, f64)> = None;
         for k in 1..=rings {
+            // Squared distances while searching (no square root per pixel).
             let mut visit = |dx: i64, dy: i64| {
                 if !self.inside(x + dx, y + dy) {
-                    let d = (dx as f64 * self.mm_x).hypot(dy as f64 * self.mm_y);
-                    if best.map_or(true, |b| d < b.2) {
-                        best = Some((dx, dy, d));
+                    let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
+                    let d2 = ex * ex + ey * ey;
+                    if best.map_or(true, |b| d2 < b.2) {
+                        best = Some((dx, dy, d2));
                     }
                 }
             };
@@ -324,11 +324,12 @@ impl Probe<'_> {
                 visit(k, d);
             }
             // Every pixel of the next ring is at least (k + 1)·step away.
-            if best.is_some_and(|b| b.2 <= (k + 1) as f64 * step) {
+            let next = (k + 1) as f64 * step;
+            if best.is_some_and(|b| b.2 <= next * next) {
                 break;
             }
         }
-        best
+        best.map(|(dx, dy, d2)| (dx, dy, d2.sqrt()))
     }
 
     /// The local width (mm) at pixel (`x`, `y`) by the chord method (module docs), or `None`
@@ -343,8 +344,7 @@ impl Probe<'_> {
             let a = across + CHORD_SPREAD * (k as f64 / (CHORD_DIRECTIONS - 1) as f64 * 2.0 - 1.0);
             // Pixels per mm of travel along the direction.
             let (vx, vy) = (a.cos() / self.mm_x, a.sin() / self.mm_y);
-            let at =
-                |t: f64| self.inside((cx + t * vx).floor() as i64, (cy + t * vy).floor() as i64);
+            let at = |t: f64| self.inside(floor(cx + t * vx), floor(cy + t * vy));
             // Distance to where the line leaves the feature, or None beyond `limit`.
             let exit = |sign: f64, limit: f64| -> Option<f64> {
                 let mut t = 0.0;
@@ -355,7 +355,7 @@ impl Probe<'_> {
                     }
                     if !at(sign * next) {
                         let (mut lo, mut hi) = (t, next);
-                        for _ in 0..10 {
+                        for _ in 0..6 {
                             let mid = 0.5 * (lo + hi);
                             if at(sign * mid) {
                                 lo = mid;
@@ -394,6 +394,13 @@ impl Probe<'_> {
         }
         Some(w)
     }
+}
+
+/// `v.floor() as i64` without the libm call (values are far inside the i64 range).
+#[inline]
+fn floor(v: f64) -> i64 {
+    let t = v as i64;
+    t - ((t as f64) > v) as i64
 }
 
 /// Chord directions tried per pixel, spread evenly over ±`CHORD_SPREAD` about the direction

@@ -198,9 +198,9 @@ const MAX_LISTED: usize = 300;
 /// Residue pixels examined per film and kind at most (bounds time on pathological input).
 const MAX_RESIDUE_PIXELS: usize = 20_000_000;
 /// Pixels measured per component at most (evenly spread).
-const SAMPLES_PER_COMPONENT: usize = 32;
+const SAMPLES_PER_COMPONENT: usize = 16;
 /// A component's width is this percentile of its measured chords (see `thin_parts`).
-const ROBUST_MIN_PERCENT: usize = 20;
+const ROBUST_MIN_PERCENT: usize = 50;
 
 /// A thin part found in one space, in crop pixel coordinates.
 #[derive(Debug, Clone)]
@@ -512,35 +512,58 @@ fn hole_sites(input: &FilmInput<'_>) -> Vec<HoleSite> {
 
 /// The copper ring around `hole` on `material` (crop pixels): `None` when no copper is near
 /// the hole at all (a hole in a bare area) or the ring is at least `min_ring` wide.
+///
+/// Looks only at the annulus from the hole's edge to `min_ring` (plus a pixel) beyond it, row
+/// by row; copper counts as "near" in that annulus or halfway between the mark and the hole's
+/// edge (a pad no larger than its drill still shows there when the mark is a pilot dot).
 fn ring_of(material: &Bitmap, area: &Area, hole: &HoleSite, min_ring: f64) -> Option<f64> {
     let need = hole.open_r + min_ring;
+    let reach = need + area.pixel_mm();
     let (cx, cy) = area.to_px(hole.at);
-    let rx = (need / area.mm_x).ceil() as i64 + 2;
-    let ry = (need / area.mm_y).ceil() as i64 + 2;
-    let (ix, iy) = (cx.floor() as i64, cy.floor() as i64);
-    let get = |x: i64, y: i64| {
-        x >= 0 && y >= 0 && material.get(x as usize, y as usize) // out of range reads clear
-    };
-    let mut copper_near = false;
+    let get = |x: i64, y: i64| x >= 0 && y >= 0 && material.get(x as usize, y as usize);
+    let mid = 0.5 * (hole.mark_r + hole.open_r);
+    let mut copper_near = hole.open_r > hole.mark_r
+        && (0..8).any(|k| {
+            let a = k as f64 * std::f64::consts::FRAC_PI_4;
+            get(
+                (cx + mid * a.cos() / area.mm_x).floor() as i64,
+                (cy + mid * a.sin() / area.mm_y).floor() as i64,
+            )
+        });
+    // Squared distances in the loop; one square root at the end.
+    let (need2, open2, reach2) = (need * need, hole.open_r * hole.open_r, reach * reach);
     let mut nearest_gap = f64::INFINITY;
+    let ry = (reach / area.mm_y).ceil() as i64 + 1;
+    let iy = cy.floor() as i64;
     for y in (iy - ry)..=(iy + ry) {
-        for x in (ix - rx)..=(ix + rx) {
+        let dy = (y as f64 + 0.5 - cy) * area.mm_y;
+        let rest2 = reach2 - dy * dy;
+        if rest2 < 0.0 {
+            continue;
+        }
+        // Columns whose centres lie within `reach` on this row.
+        let half = rest2.sqrt() / area.mm_x;
+        let (x0, x1) = (
+            (cx - half - 0.5).floor() as i64,
+            (cx + half - 0.5).ceil() as i64,
+        );
+        for x in x0..=x1 {
             let dx = (x as f64 + 0.5 - cx) * area.mm_x;
-            let dy = (y as f64 + 0.5 - cy) * area.mm_y;
-            let d = dx.hypot(dy);
-            if d > need + area.pixel_mm() {
+            let d2 = dx * dx + dy * dy;
+            if d2 < open2 || d2 > reach2 {
                 continue;
             }
             if get(x, y) {
-                copper_near |= d <= need;
-            } else if d >= hole.open_r && d < nearest_gap {
-                nearest_gap = d;
+                copper_near |= d2 <= need2;
+            } else if d2 < nearest_gap {
+                nearest_gap = d2;
             }
         }
     }
     if !copper_near || !nearest_gap.is_finite() {
         return None;
     }
+    let nearest_gap = nearest_gap.sqrt();
     // The nearest clear pixel's centre lies half a pixel beyond the copper's edge.
     let ring = (nearest_gap - 0.5 * area.pixel_mm() - hole.open_r).max(0.0);
     (ring < min_ring - 0.5 * area.pixel_mm()).then_some(ring)
@@ -684,9 +707,11 @@ pub fn check_film(
                 .filter(|t| {
                     let n = t.count.max(1) as f64;
                     let at = area.to_mm(t.sum.0 / n, t.sum.1 / n);
-                    !holes
-                        .iter()
-                        .any(|hs| hs.at.dist(at) <= hs.mark_r + area.pixel_mm())
+                    !holes.iter().any(|hs| {
+                        let r = hs.mark_r + area.pixel_mm();
+                        let (dx, dy) = (hs.at.x - at.x, hs.at.y - at.y);
+                        dx * dx + dy * dy <= r * r
+                    })
                 })
                 .collect();
             check.smallest_width_mm = smallest(&copper);
@@ -694,20 +719,25 @@ pub fn check_film(
             let mut rings = Vec::new();
             let mut ring_holes = Vec::new();
             if limits.min_annular_ring_mm > 0.0 {
-                for hs in &holes {
-                    if let Some(r) = ring_of(&material, &area, hs, limits.min_annular_ring_mm) {
-                        ring_holes.push(*hs);
-                        let d = 2.0 * hs.open_r;
-                        rings.push(finding(
-                            input,
-                            FindingKind::ThinRing,
-                            hs.at,
-                            r,
-                            limits.min_annular_ring_mm,
-                            [d, d],
-                            Some(hs.hole_mm),
-                        ));
-                    }
+                let thin_rings: Vec<(HoleSite, f64)> = holes
+                    .par_iter()
+                    .filter_map(|hs| {
+                        ring_of(&material, &area, hs, limits.min_annular_ring_mm).map(|r| (*hs, r))
+                    })
+                    .collect();
+                for (hs, r) in &thin_rings {
+                    let r = *r;
+                    ring_holes.push(*hs);
+                    let d = 2.0 * hs.open_r;
+                    rings.push(finding(
+                        input,
+                        FindingKind::ThinRing,
+                        hs.at,
+                        r,
+                        limits.min_annular_ring_mm,
+                        [d, d],
+                        Some(hs.hole_mm),
+                    ));
                 }
             }
             // A thin ring is one finding, not also a thin piece of copper.

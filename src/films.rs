@@ -721,22 +721,48 @@ pub fn run(
 ) -> Result<Summary, FilmsError> {
     let staged = StagedDir::new(&opts.out, opts.force)?;
     progress("rendering films");
-    let (films, frame, mut warnings) =
-        make_films(board, profile, job, &opts.board_name, &opts.date)?;
-    progress("checking films");
-    let mut check = crate::check::check_films(&films, board, &frame.board, &profile.limits);
-    crate::proof::write_board_proof(
-        &staged.path("proof.png"),
-        "proof.png",
-        &opts.board_name,
-        &films,
-        board,
-        &frame,
-        profile.artwork.target_size_mm,
-        &mut check,
-    )
-    .map_err(|e| FilmsError::Output(e.to_string()))?;
-    let layout = lay_out(&films, profile)?;
+    let (films, frame, warnings) = make_films(board, profile, job, &opts.board_name, &opts.date)?;
+    // The process check and the proof picture run beside the sheets and the PDF, which are
+    // mostly single-threaded compression.
+    std::thread::scope(|scope| {
+        let checking = scope.spawn(|| {
+            let mut check = crate::check::check_films(&films, board, &frame.board, &profile.limits);
+            crate::proof::write_board_proof(
+                &staged.path("proof.png"),
+                "proof.png",
+                &opts.board_name,
+                &films,
+                board,
+                &frame,
+                profile.artwork.target_size_mm,
+                &mut check,
+            )
+            .map(|()| check)
+            .map_err(|e| FilmsError::Output(e.to_string()))
+        });
+        let written = write_sheets(&films, &frame, profile, &staged, progress);
+        let check = checking
+            .join()
+            .map_err(|_| FilmsError::Output("the process check failed unexpectedly".into()))??;
+        let (reports, sheets, tooling) = written?;
+        Ok((reports, sheets, tooling, check))
+    })
+    .and_then(|(reports, sheets, tooling, check)| {
+        finish(
+            board, opts, staged, &frame, reports, sheets, tooling, warnings, check,
+        )
+    })
+}
+
+/// Lays out the films and writes the sheets (PNG), the PDF and the tooling-hole file.
+fn write_sheets(
+    films: &[MadeFilm],
+    frame: &BoardFrame,
+    profile: &Profile,
+    staged: &StagedDir,
+    progress: &dyn Fn(&str),
+) -> Result<(Vec<FilmReport>, Vec<SheetReport>, Option<String>), FilmsError> {
+    let layout = lay_out(films, profile)?;
     let mut reports: Vec<FilmReport> = films.iter().map(report_of).collect();
     let mut sheets = Vec::new();
     let mut pdf_pages_bitmaps = Vec::new();
@@ -746,7 +772,7 @@ pub fn run(
             i + 1,
             layout.sheets.len()
         ));
-        let rs = compose_sheet(i + 1, plan, &films, profile);
+        let rs = compose_sheet(i + 1, plan, films, profile);
         let png = format!("sheet-{:02}.png", i + 1);
         crate::output::png::write_png(&staged.path(&png), &rs.bitmap, rs.dpi.0, rs.dpi.1, true)
             .map_err(|e| FilmsError::Output(e.to_string()))?;
@@ -796,6 +822,22 @@ pub fn run(
             tooling = Some(name);
         }
     }
+    Ok((reports, sheets, tooling))
+}
+
+/// Writes the manifest and moves the finished folder into place.
+#[allow(clippy::too_many_arguments)]
+fn finish(
+    board: &Board,
+    opts: &RunOptions,
+    staged: StagedDir,
+    frame: &BoardFrame,
+    reports: Vec<FilmReport>,
+    sheets: Vec<SheetReport>,
+    tooling: Option<String>,
+    mut warnings: Vec<String>,
+    check: crate::check::CheckReport,
+) -> Result<Summary, FilmsError> {
     for w in &board.warnings {
         warnings.push(w.to_string());
     }

@@ -1,14 +1,16 @@
 //! Pixel-level tools of the process check: cropping the board out of a film, residues,
 //! connected components, and the local width of a thin feature.
 //!
-//! # Local width (the chord method)
-//! The width of a feature at pixel `p` is the shortest chord through `p`'s centre across the
-//! feature, over 9 directions within ±50° of the direction to `p`'s nearest outside pixel.
-//! Across a band of constant width (a track, a gap) every pixel
-//! gives the band's width (the perpendicular chord). The chord ends are found where the line
-//! leaves the feature's pixels (pixel `(i, j)` covers `[i, i+1) × [j, j+1)`), refined by
-//! bisection, so an axis-aligned band of `n` pixels measures exactly `n` pixels. Corners are
-//! short across too, so callers measure only residue that matters (see `check::Keep`).
+//! # Local width
+//! The width of a thin feature at pixel `p` is `d₁ + d₂ − 1 pixel`: `d₁` is the distance from
+//! `p`'s centre to the nearest pixel centre outside the feature, `d₂` the distance to the
+//! nearest outside centre on the opposite side (within 40° of straight across from the first),
+//! and each outside centre lies half a pixel beyond the feature's edge. Across a band of
+//! constant width every pixel gives about the band's width: an axis-aligned band of `n`
+//! pixels measures exactly `n` pixels (1 + n − 1), a slanted one within about a pixel (its
+//! stair-step edges lie between the inner and outer corners). At a stair step the near
+//! outside pixel is beside `p` and the far side is still straight across, so samples anywhere
+//! in a cross-section agree.
 
 use crate::raster::Bitmap;
 
@@ -298,22 +300,36 @@ impl Probe<'_> {
         self.bm.get(x as usize, y as usize)
     }
 
-    /// The offset (dx, dy) of the nearest pixel not in the feature and its distance (pixel
-    /// centre to pixel centre, mm), searched up to `max_mm` away.
-    pub fn nearest_outside(&self, x: i64, y: i64, max_mm: f64) -> Option<(i64, i64, f64)> {
+    /// The distance (mm) from the centre of pixel (`x`, `y`) to the nearest centre of a pixel
+    /// outside the feature, and the unit direction to it (mm space), searched up to `max_mm`.
+    /// With `cone = Some((ux, uy, cos))`, only pixels whose direction is within the angle of
+    /// cosine `cos` about (ux, uy) count.
+    fn nearest_outside(
+        &self,
+        x: i64,
+        y: i64,
+        max_mm: f64,
+        cone: Option<(f64, f64, f64)>,
+    ) -> Option<(f64, f64, f64)> {
         let step = self.mm_x.min(self.mm_y);
         let rings = (max_mm / step).ceil() as i64 + 1;
-        let mut best: Option<(i64, i64, f64)> = None;
+        let mut best: Option<(f64, f64, f64)> = None; // (squared distance, ex, ey)
         for k in 1..=rings {
-            // Squared distances while searching (no square root per pixel).
             let mut visit = |dx: i64, dy: i64| {
-                if !self.inside(x + dx, y + dy) {
-                    let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
-                    let d2 = ex * ex + ey * ey;
-                    if best.map_or(true, |b| d2 < b.2) {
-                        best = Some((dx, dy, d2));
+                if self.inside(x + dx, y + dy) {
+                    return;
+                }
+                let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
+                let d2 = ex * ex + ey * ey;
+                if best.is_some_and(|b| d2 >= b.0) {
+                    return;
+                }
+                if let Some((ux, uy, cos)) = cone {
+                    if ex * ux + ey * uy < cos * d2.sqrt() {
+                        return;
                     }
                 }
+                best = Some((d2, ex, ey));
             };
             for d in -k..=k {
                 visit(d, -k);
@@ -325,90 +341,33 @@ impl Probe<'_> {
             }
             // Every pixel of the next ring is at least (k + 1)·step away.
             let next = (k + 1) as f64 * step;
-            if best.is_some_and(|b| b.2 <= next * next) {
+            if best.is_some_and(|b| b.0 <= next * next) || next > max_mm {
                 break;
             }
         }
-        best.map(|(dx, dy, d2)| (dx, dy, d2.sqrt()))
+        best.map(|(d2, ex, ey)| {
+            let d = d2.sqrt();
+            (d, ex / d, ey / d)
+        })
     }
 
-    /// The local width (mm) at pixel (`x`, `y`) by the chord method (module docs), or `None`
-    /// when it is at least `cap_mm` (the feature is not thin here).
+    /// The local width (mm) of the feature through pixel (`x`, `y`), or `None` when it is at
+    /// least `cap_mm` (the feature is not thin here). See the module docs.
     pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
-        let (dx, dy, _) = self.nearest_outside(x, y, cap_mm / 2.0 + self.mm_x.max(self.mm_y))?;
-        let across = (dy as f64 * self.mm_y).atan2(dx as f64 * self.mm_x);
-        let (cx, cy) = (x as f64 + 0.5, y as f64 + 0.5);
-        let step = 0.25 * self.mm_x.min(self.mm_y);
-        let mut best = cap_mm;
-        for k in 0..CHORD_DIRECTIONS {
-            let a = across + CHORD_SPREAD * (k as f64 / (CHORD_DIRECTIONS - 1) as f64 * 2.0 - 1.0);
-            // Pixels per mm of travel along the direction.
-            let (vx, vy) = (a.cos() / self.mm_x, a.sin() / self.mm_y);
-            let at = |t: f64| self.inside(floor(cx + t * vx), floor(cy + t * vy));
-            // Distance to where the line leaves the feature, or None beyond `limit`.
-            let exit = |sign: f64, limit: f64| -> Option<f64> {
-                let mut t = 0.0;
-                loop {
-                    let next = t + step;
-                    if next > limit {
-                        return None;
-                    }
-                    if !at(sign * next) {
-                        let (mut lo, mut hi) = (t, next);
-                        for _ in 0..6 {
-                            let mid = 0.5 * (lo + hi);
-                            if at(sign * mid) {
-                                lo = mid;
-                            } else {
-                                hi = mid;
-                            }
-                        }
-                        return Some(hi);
-                    }
-                    t = next;
-                }
-            };
-            let Some(a) = exit(1.0, best) else {
-                continue;
-            };
-            if let Some(b) = exit(-1.0, best - a) {
-                best = best.min(a + b);
-            }
-        }
-        (best < cap_mm).then_some(best)
+        let px = self.mm_x.max(self.mm_y);
+        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None)?;
+        let cone = Some((-ux, -uy, OPPOSITE_COS));
+        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone)?;
+        // Each outside centre lies half a pixel (along the direction) beyond the edge.
+        let pixel_along = (ux * self.mm_x).hypot(uy * self.mm_y);
+        let width = d1 + d2 - pixel_along;
+        (width < cap_mm).then_some(width)
     }
 }
 
-impl Probe<'_> {
-    /// [`Probe::width_at`], raised to the largest width among the pixel's 8 neighbours in the
-    /// feature: a pixel at the tip of a stair step of a slanted edge is short across in every
-    /// direction near "across", its neighbours are not. `None` when any of them is not thin.
-    pub fn width_near(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
-        let mut w = self.width_at(x, y, cap_mm)?;
-        for dy in -1..=1 {
-            for dx in -1..=1 {
-                if (dx != 0 || dy != 0) && self.inside(x + dx, y + dy) {
-                    w = w.max(self.width_at(x + dx, y + dy, cap_mm)?);
-                }
-            }
-        }
-        Some(w)
-    }
-}
-
-/// `v.floor() as i64` without the libm call (values are far inside the i64 range).
-#[inline]
-fn floor(v: f64) -> i64 {
-    let t = v as i64;
-    t - ((t as f64) > v) as i64
-}
-
-/// Chord directions tried per pixel, spread evenly over ±`CHORD_SPREAD` about the direction
-/// to the nearest outside pixel: 12.5° apart, so a chord across a band is at most
-/// 1/cos 6.25° − 1 = 0.6 % longer than the band's width. Directions far from "across" are
-/// left out: along a slanted band they would slip out through the stair steps of its edge.
-const CHORD_DIRECTIONS: usize = 9;
-const CHORD_SPREAD: f64 = 50.0 * std::f64::consts::PI / 180.0;
+/// The far side is looked for within 40° of straight across: the edge beside a pixel at a
+/// stair step of a slanted band runs at 45° or more from "across" and is left out.
+const OPPOSITE_COS: f64 = 0.766_044_443_118_978; // cos 40°
 
 #[cfg(test)]
 mod tests {

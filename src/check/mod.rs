@@ -140,12 +140,12 @@ pub struct FilmCheck {
     pub copper_area_mm2: Option<f64>,
     /// Copper as a percentage of the board's box.
     pub copper_percent: Option<f64>,
-    /// The narrowest copper measured (copper films), mm; `None` when nothing measured below
-    /// `measured_below_mm`.
+    /// The narrowest copper measured (copper films), mm; `None` when nothing narrower than
+    /// about `measured_below_mm` was found (features a little wider may be measured too).
     pub smallest_width_mm: Option<f64>,
     /// The narrowest gap (copper films) or mask web (mask films) measured, mm.
     pub smallest_gap_mm: Option<f64>,
-    /// Widths are measured below this; larger ones are not looked at.
+    /// The limit below which features are looked for; "at least this" when none was found.
     pub measured_below_mm: f64,
     pub findings: usize,
     /// Findings found but not listed (the list keeps the worst of each kind).
@@ -356,7 +356,7 @@ fn thin_parts(
                 .pixels
                 .iter()
                 .step_by(stride)
-                .filter_map(|&(x, y)| probe.width_near(x as i64, y as i64, cap))
+                .filter_map(|&(x, y)| probe.width_at(x as i64, y as i64, cap))
                 .collect();
             if widths.is_empty() {
                 return None;
@@ -675,8 +675,7 @@ pub fn check_film(
             check.copper_area_mm2 = Some(area_mm2);
             let box_mm2 = board.width() * board.height();
             check.copper_percent = (box_mm2 > 0.0).then(|| 100.0 * area_mm2 / box_mm2);
-            check.measured_below_mm =
-                MEASURE_FACTOR * limits.min_copper_width_mm.min(limits.min_gap_mm);
+            check.measured_below_mm = limits.min_copper_width_mm.min(limits.min_gap_mm);
             let holes = hole_sites(input);
             let (copper, gaps) = rayon::join(
                 || {
@@ -770,7 +769,7 @@ pub fn check_film(
             lists.extend([thin, narrow, copper_gone, gap_gone, rings]);
         }
         LayerFunction::SolderMask => {
-            check.measured_below_mm = MEASURE_FACTOR * limits.min_mask_web_mm;
+            check.measured_below_mm = limits.min_mask_web_mm;
             let labels = Labels::of(&material);
             let web = inverted(&material);
             let webs = merge(

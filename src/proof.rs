@@ -448,11 +448,12 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
     // Findings: a vermillion ring on a white halo, and the number on a white box.
     let mut markers = Vec::new();
     let (mut halos, mut rings, mut boxes, mut numbers) = (vec![], vec![], vec![], vec![]);
-    let num_cap = 1.6f64.max(12.0 / ppm);
+    let num_cap = 1.0f64.max(14.0 / ppm);
     for f in input.findings {
-        let r = (f.extent_mm[0].max(f.extent_mm[1]) / 2.0 + 0.6).clamp(1.0, 6.0);
-        let rw = (0.3f64).max(3.0 / ppm);
-        halos.push(ring(f.at_mm, r, rw * 3.0));
+        // Small and alike: the circle marks a place, the table says how large the area is.
+        let r = (f.extent_mm[0].max(f.extent_mm[1]) / 2.0 + 0.4).clamp(0.6, 1.2);
+        let rw = (0.12f64).max(2.0 / ppm);
+        halos.push(ring(f.at_mm, r, rw + 4.0 / ppm));
         rings.push(ring(f.at_mm, r, rw));
         let text = f.number.to_string();
         let at = Point::new(f.at_mm.x + r * 0.8, f.at_mm.y + r * 0.8);

@@ -35,8 +35,9 @@ pub fn kind_advice(kind: FindingKind) -> &'static str {
              widen it in the design or print at a higher resolution"
         }
         FindingKind::ThinRing => {
-            "use a larger pad or a smaller drill; with drill_marks.style = \"full\" the film \
-             already removes the whole hole, \"pilot\" keeps the copper for the drill to cut"
+            "use a larger pad or a smaller drill; where the drill-centre mark is larger than the \
+             drill, its etched dot eats the ring too: set drill_marks.pilot_diameter_mm below \
+             the smallest drill (or style = \"none\")"
         }
         FindingKind::ThinMaskWeb => {
             "the mask between these openings will flake off: one opening over the whole row of \
@@ -135,8 +136,11 @@ pub fn check_text(r: &CheckReport) -> String {
                 format!("{:.3} mm", f.width_mm),
                 format!("{:.2} mm", f.limit_mm),
                 match (f.kind, f.drawn_mm) {
-                    (FindingKind::ThinRing, Some(d)) => format!("hole {d:.2} mm"),
-                    (_, Some(d)) => format!("{d:.3} mm"),
+                    (FindingKind::ThinRing, Some(d)) => match f.mark_mm {
+                        Some(m) if m > d => format!("hole {d:.2} mm, mark {m:.2} mm"),
+                        _ => format!("hole {d:.2} mm"),
+                    },
+                    (_, Some(d)) => format!("{d:.4} mm"),
                     _ => String::new(),
                 },
             ]);

@@ -744,14 +744,16 @@ pub fn run(
         let check = checking
             .join()
             .map_err(|_| FilmsError::Output("the process check failed unexpectedly".into()))??;
-        let (reports, sheets, tooling) = written?;
-        Ok((reports, sheets, tooling, check))
+        Ok((written?, check))
     })
-    .and_then(|(reports, sheets, tooling, check)| {
-        finish(
-            board, opts, staged, &frame, reports, sheets, tooling, warnings, check,
-        )
-    })
+    .and_then(|(written, check)| finish(board, opts, staged, &frame, written, warnings, check))
+}
+
+/// What [`write_sheets`] wrote.
+struct SheetsWritten {
+    reports: Vec<FilmReport>,
+    sheets: Vec<SheetReport>,
+    tooling: Option<String>,
 }
 
 /// Lays out the films and writes the sheets (PNG), the PDF and the tooling-hole file.
@@ -761,7 +763,7 @@ fn write_sheets(
     profile: &Profile,
     staged: &StagedDir,
     progress: &dyn Fn(&str),
-) -> Result<(Vec<FilmReport>, Vec<SheetReport>, Option<String>), FilmsError> {
+) -> Result<SheetsWritten, FilmsError> {
     let layout = lay_out(films, profile)?;
     let mut reports: Vec<FilmReport> = films.iter().map(report_of).collect();
     let mut sheets = Vec::new();
@@ -822,19 +824,20 @@ fn write_sheets(
             tooling = Some(name);
         }
     }
-    Ok((reports, sheets, tooling))
+    Ok(SheetsWritten {
+        reports,
+        sheets,
+        tooling,
+    })
 }
 
 /// Writes the manifest and moves the finished folder into place.
-#[allow(clippy::too_many_arguments)]
 fn finish(
     board: &Board,
     opts: &RunOptions,
     staged: StagedDir,
     frame: &BoardFrame,
-    reports: Vec<FilmReport>,
-    sheets: Vec<SheetReport>,
-    tooling: Option<String>,
+    written: SheetsWritten,
     mut warnings: Vec<String>,
     check: crate::check::CheckReport,
 ) -> Result<Summary, FilmsError> {
@@ -846,10 +849,10 @@ fn finish(
         date: opts.date.clone(),
         board_extents_mm: frame.board,
         targets_mm: frame.targets,
-        films: reports,
-        sheets,
+        films: written.reports,
+        sheets: written.sheets,
         pdf: "films.pdf".into(),
-        tooling_holes: tooling,
+        tooling_holes: written.tooling,
         warnings,
         check,
     };

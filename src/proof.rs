@@ -352,14 +352,14 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
         .enumerate()
         .filter(|(y, _)| (ky0..ky1).contains(y))
         .for_each(|(y, row)| {
-            for x in kx0..kx1 {
+            for (x, px) in row.iter_mut().enumerate().take(kx1).skip(kx0) {
                 let ft = top.as_ref().map_or(0.0, |(f, s)| s.coverage(f, x, y));
                 let fb = bottom.as_ref().map_or(0.0, |(f, s)| s.coverage(f, x, y));
                 if ft == 0.0 && fb == 0.0 {
                     continue;
                 }
                 let level = |f: f64| (f * 4.0 + 0.5) as usize;
-                row[x] = (BLEND0 + level(ft) * LEVELS + level(fb)) as u8;
+                *px = (BLEND0 + level(ft) * LEVELS + level(fb)) as u8;
             }
         });
 

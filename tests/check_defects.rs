@@ -150,7 +150,8 @@ fn track_widths_measure_within_one_pixel() {
     for dpi in DPIS {
         let px = pixel_mm(dpi);
         for w in [0.06, 0.1, 0.13, 0.17, 0.25] {
-            for (dx, dy) in [(1.0, 0.0), (0.0, 1.0), (0.7071, 0.7071), (0.866, 0.5)] {
+            let (c45, c30, s30) = (std::f64::consts::FRAC_1_SQRT_2, 0.75f64.sqrt(), 0.5);
+            for (dx, dy) in [(1.0, 0.0), (0.0, 1.0), (c45, c45), (c30, s30)] {
                 let a = p(10.0 - 3.0 * dx, 10.0 - 3.0 * dy);
                 let b = p(10.0 + 3.0 * dx, 10.0 + 3.0 * dy);
                 let c = check_copper(

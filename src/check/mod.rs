@@ -257,12 +257,12 @@ impl Area {
     }
 
     /// Crop pixel coordinates (continuous) → board mm.
-    fn to_mm(&self, x: f64, y: f64) -> Point {
+    fn to_mm(self, x: f64, y: f64) -> Point {
         self.map.to_mm(x + self.x0 as f64, y + self.y0 as f64)
     }
 
     /// Board mm → crop pixel coordinates (continuous).
-    fn to_px(&self, p: Point) -> (f64, f64) {
+    fn to_px(self, p: Point) -> (f64, f64) {
         let (x, y) = self.map.to_px(p);
         (x - self.x0 as f64, y - self.y0 as f64)
     }

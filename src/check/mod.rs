@@ -6,8 +6,8 @@
 //! `docs/check.md` for the method and its limits.
 //!
 //! - Copper narrower than `min_copper_width_mm`: what a morphological opening with a disc of
-//!   that diameter removes, then measured by the chord method (`measure.rs`) so that convex
-//!   corners, which an opening also rounds, are not reported.
+//!   that diameter removes, kept only where it joins copper (or is an island), then measured
+//!   (`measure.rs`); convex corners, which an opening also rounds, are not reported.
 //! - Gaps narrower than `min_gap_mm`: the same on the complement (a closing of the copper).
 //! - Copper that vanishes entirely (a drawn object with no pixel on the film) and clearances
 //!   that close entirely (a drawn clear object with no clear pixel), from the layer image.
@@ -194,14 +194,14 @@ pub struct FilmInput<'a> {
 /// to 0.5 mm beyond (compose::BOARD_CLIP_MARGIN_MM); targets and label lie further out and
 /// are not checked.
 const BOARD_MARGIN_MM: f64 = 0.5;
-/// Widths are measured up to this multiple of the limit (for the "smallest seen" figures).
+/// Widths are measured up to this multiple of the limit; wider samples count as not thin.
 const MEASURE_FACTOR: f64 = 1.5;
 /// Drawn objects narrower than this are not reported as lost: EDA programs leave slivers of a
 /// fraction of a micrometre in pours (board 01 of the real-world corpus has 0.2 µm squares),
 /// and nothing that narrow is meant to be made.
 const MIN_DRAWN_MM: f64 = 0.005;
 /// Findings listed per kind and film (the narrowest first).
-const MAX_LISTED: usize = 300;
+const MAX_LISTED: usize = 100;
 /// Residue pixels examined per film and kind at most (bounds time on pathological input).
 const MAX_RESIDUE_PIXELS: usize = 20_000_000;
 /// Pixels measured per component at most (evenly spread).
@@ -300,8 +300,8 @@ fn disc_radius_um(min_mm: f64, mm_x: f64, mm_y: f64) -> f64 {
     (k(mm_x) * mm_x).max(k(mm_y) * mm_y) * 1000.0
 }
 
-/// Thin parts of `space` (set = the feature measured): opening residue, components, chord
-/// widths. Returns parts narrower than `MEASURE_FACTOR × min_mm`.
+/// Thin parts of `space` (set = the feature measured): opening residue, components that
+/// matter (`keep`), widths. Returns parts measured narrower than `MEASURE_FACTOR × min_mm`.
 /// Which thin parts matter.
 enum Keep<'a> {
     /// Thin copper: parts that join two or more pieces of well-formed copper (a neck, a thin
@@ -325,7 +325,7 @@ fn thin_parts(
         return Vec::new();
     }
     // One pixel more than half the limit: a digital disc is narrower along the diagonals
-    // than along the axes, and the chord measurement decides what is thin anyway.
+    // than along the axes, and the width measurement decides what is thin anyway.
     let r_um =
         disc_radius_um(min_mm, area.mm_x, area.mm_y).max((min_mm / 2.0 + area.pixel_mm()) * 1000.0);
     let pitch = Pitch {
@@ -395,7 +395,9 @@ fn on_part(c: &measure::Component) -> (f64, f64) {
     }
 }
 
-/// Merges parts whose boxes come within `gap_px` of each other.
+/// Merges parts whose boxes come within `gap_px` of each other. Only small parts (fragments
+/// of one thin feature broken up by the pixel grid) are merged: the box of a long, winding
+/// part says little about where its pixels are.
 fn merge(parts: Vec<Thin>, gap_px: u32) -> Vec<Thin> {
     let n = parts.len();
     if n > 20_000 {
@@ -409,7 +411,11 @@ fn merge(parts: Vec<Thin>, gap_px: u32) -> Vec<Thin> {
         }
         i
     }
-    let mut order: Vec<usize> = (0..n).collect();
+    let small = |t: &Thin| {
+        let (x0, y0, x1, y1) = t.bbox;
+        (x1 - x0).max(y1 - y0) <= 8 * gap_px
+    };
+    let mut order: Vec<usize> = (0..n).filter(|&i| small(&parts[i])).collect();
     order.sort_by_key(|&i| parts[i].bbox.0);
     for (k, &i) in order.iter().enumerate() {
         let a = parts[i].bbox;

@@ -158,7 +158,12 @@ pub fn check_text(r: &CheckReport) -> String {
         kinds.sort();
         kinds.dedup();
         for k in kinds {
-            s.push_str(&format!("  {}: {}\n", kind_words(k), kind_advice(k)));
+            let n = r.findings.iter().filter(|f| f.kind == k).count();
+            s.push_str(&format!(
+                "  {} ({n} listed): {}\n",
+                kind_words(k),
+                kind_advice(k)
+            ));
         }
     }
     if let Some(p) = &r.proof {

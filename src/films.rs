@@ -333,6 +333,9 @@ pub struct Summary {
     pub device: crate::device::DeviceKind,
     /// The image files of an LCD screen or film service (empty for a printer's sheets).
     pub images: Vec<crate::device::DeviceImage>,
+    /// The process check of the films and the proof picture (`proof.png`); for printer
+    /// sheets only (`umbra check` checks any board at the printer's settings).
+    pub check: Option<crate::check::CheckReport>,
 }
 
 /// Height reserved above every piece on a sheet for its caption, mm.
@@ -895,9 +898,60 @@ pub fn run(
     }
     let staged = StagedDir::new(&opts.out, opts.force)?;
     progress("rendering films");
-    let (films, frame, mut warnings) =
-        make_films(board, profile, job, &opts.board_name, &opts.date)?;
-    let layout = lay_out(&films, profile)?;
+    let (films, frame, warnings) = make_films(board, profile, job, &opts.board_name, &opts.date)?;
+    // The process check and the proof picture run beside the sheets and the PDF, which are
+    // mostly single-threaded compression.
+    std::thread::scope(|scope| {
+        let checking = scope.spawn(|| {
+            let mut check = crate::check::check_films(&films, board, &frame.board, &profile.limits);
+            crate::proof::write_board_proof(
+                &staged.path("proof.png"),
+                "proof.png",
+                &opts.board_name,
+                &films,
+                board,
+                &frame,
+                profile.artwork.target_size_mm,
+                &mut check,
+            )
+            .map(|()| check)
+            .map_err(|e| FilmsError::Output(e.to_string()))
+        });
+        let written = write_sheets(
+            board,
+            &films,
+            &frame,
+            profile,
+            &staged,
+            opts.vector,
+            progress,
+        );
+        let check = checking
+            .join()
+            .map_err(|_| FilmsError::Output("the process check failed unexpectedly".into()))??;
+        Ok((written?, check))
+    })
+    .and_then(|(written, check)| finish(board, opts, staged, &frame, written, warnings, check))
+}
+
+/// What [`write_sheets`] wrote.
+struct SheetsWritten {
+    reports: Vec<FilmReport>,
+    sheets: Vec<SheetReport>,
+    tooling: Option<String>,
+}
+
+/// Lays out the films and writes the sheets (PNG), the PDF and the tooling-hole file.
+fn write_sheets(
+    board: &Board,
+    films: &[MadeFilm],
+    frame: &BoardFrame,
+    profile: &Profile,
+    staged: &StagedDir,
+    vector: bool,
+    progress: &dyn Fn(&str),
+) -> Result<SheetsWritten, FilmsError> {
+    let layout = lay_out(films, profile)?;
     let mut reports: Vec<FilmReport> = films.iter().map(report_of).collect();
     let mut sheets = Vec::new();
     let mut pdf_pages_bitmaps = Vec::new();
@@ -907,7 +961,7 @@ pub fn run(
             i + 1,
             layout.sheets.len()
         ));
-        let rs = compose_sheet(i + 1, plan, &films, profile);
+        let rs = compose_sheet(i + 1, plan, films, profile);
         let png = format!("sheet-{:02}.png", i + 1);
         crate::output::png::write_png(&staged.path(&png), &rs.bitmap, rs.dpi.0, rs.dpi.1, true)
             .map_err(|e| FilmsError::Output(e.to_string()))?;
@@ -940,9 +994,9 @@ pub fn run(
         .map_err(|e| FilmsError::Output(e.to_string()))?;
     drop(pages);
     drop(pdf_pages_bitmaps);
-    if opts.vector {
+    if vector {
         progress("composing vector films");
-        crate::vector::write_vector_outputs(&staged, board, &films, &frame, &layout, profile)
+        crate::vector::write_vector_outputs(staged, board, films, frame, &layout, profile)
             .map_err(FilmsError::Output)?;
     }
     let mut tooling = None;
@@ -962,6 +1016,23 @@ pub fn run(
             tooling = Some(name);
         }
     }
+    Ok(SheetsWritten {
+        reports,
+        sheets,
+        tooling,
+    })
+}
+
+/// Writes the manifest and moves the finished folder into place.
+fn finish(
+    board: &Board,
+    opts: &RunOptions,
+    staged: StagedDir,
+    frame: &BoardFrame,
+    written: SheetsWritten,
+    mut warnings: Vec<String>,
+    check: crate::check::CheckReport,
+) -> Result<Summary, FilmsError> {
     for w in &board.warnings {
         warnings.push(w.to_string());
     }
@@ -990,13 +1061,14 @@ pub fn run(
         date: opts.date.clone(),
         board_extents_mm: frame.board,
         targets_mm: frame.targets,
-        films: reports,
-        sheets,
+        films: written.reports,
+        sheets: written.sheets,
         pdf: "films.pdf".into(),
-        tooling_holes: tooling,
+        tooling_holes: written.tooling,
         warnings,
         device: crate::device::DeviceKind::Printer,
         images: Vec::new(),
+        check: Some(check),
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;
@@ -1090,6 +1162,10 @@ pub fn summary_text(s: &Summary, out: &Path) -> String {
                 .map(|t| format!(", {t}"))
                 .unwrap_or_default()
         ));
+    }
+    if let Some(check) = &s.check {
+        out_s.push('\n');
+        out_s.push_str(&crate::check::check_text(check));
     }
     let n: usize = s.warnings.len();
     if n > 0 {

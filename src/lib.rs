@@ -4,6 +4,7 @@
 //! render → write. Each stage knows only its neighbours.
 
 pub mod calibrate;
+pub mod check;
 pub mod device;
 pub mod diag;
 pub mod excellon;
@@ -18,6 +19,7 @@ pub mod limits;
 pub mod load;
 pub mod output;
 pub mod process;
+pub mod proof;
 pub mod raster;
 pub mod sheet;
 pub mod synth;

@@ -43,6 +43,8 @@ enum Command {
         #[arg(long)]
         dump: bool,
     },
+    /// Check the films against the process limits and draw a proof picture
+    Check(umbra::check::cli::CheckArgs),
     /// Process profiles
     #[command(subcommand)]
     Profile(ProfileCommand),
@@ -228,6 +230,7 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
         Command::Calibrate(c) => {
             umbra::calibrate::cli::run(c, &today()).map(|()| ExitCode::SUCCESS)
         }
+        Command::Check(a) => umbra::check::cli::run(a),
         Command::Profile(ProfileCommand::Init { file, force }) => {
             if file.exists() && !force {
                 return Err(format!(

@@ -184,6 +184,8 @@ pub struct Profile {
     pub exposure: crate::calibrate::ExposureSection,
     /// What exposes the films: printer, masked LCD screen or film service.
     pub device: crate::device::DeviceSection,
+    /// What the process makes reliably: the limits of `umbra check`.
+    pub limits: crate::check::ProcessLimits,
 }
 
 /// A profile that could not be used.
@@ -287,7 +289,7 @@ impl Profile {
             }
         }
         self.device.validate()?;
-        Ok(())
+        self.limits.validate()
     }
 
     pub fn dpi_x(&self) -> f64 {

@@ -418,6 +418,7 @@ pub fn run(
         warnings,
         device: profile.device.kind,
         images,
+        check: None,
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;

@@ -1,0 +1,431 @@
+//! Pixel-level tools of the process check: cropping the board out of a film, residues,
+//! connected components, and the local width of a thin feature.
+//!
+//! # Local width
+//! The width of a thin feature at pixel `p` is `d₁ + d₂ − 1 pixel`: `d₁` is the distance from
+//! `p`'s centre to the nearest pixel centre outside the feature, `d₂` the distance to the
+//! nearest outside centre on the opposite side (within 40° of straight across from the first),
+//! and each outside centre lies half a pixel beyond the feature's edge. Across a band of
+//! constant width every pixel gives about the band's width: an axis-aligned band of `n`
+//! pixels measures exactly `n` pixels (1 + n − 1), a slanted one within about a pixel (its
+//! stair-step edges lie between the inner and outer corners). At a stair step the near
+//! outside pixel is beside `p` and the far side is still straight across, so samples anywhere
+//! in a cross-section agree.
+
+use crate::raster::Bitmap;
+
+/// The `w × h` block of `src` whose top-left pixel is (`x0`, `y0`); pixels beyond `src` read
+/// as clear.
+pub(crate) fn crop(src: &Bitmap, x0: usize, y0: usize, w: usize, h: usize) -> Bitmap {
+    let mut out = Bitmap::new(w, h);
+    let (q, r) = (x0 / 64, x0 % 64);
+    for y in 0..h {
+        let sy = y0 + y;
+        if sy >= src.height() {
+            break;
+        }
+        let row = src.row(sy);
+        let dst = out.row_mut(y);
+        for (i, d) in dst.iter_mut().enumerate() {
+            let a = row.get(q + i).copied().unwrap_or(0);
+            *d = if r == 0 {
+                a
+            } else {
+                (a << r) | (row.get(q + i + 1).copied().unwrap_or(0) >> (64 - r))
+            };
+        }
+        // Keep the padding bits past `w` zero (bitmap invariant).
+        if let Some(last) = dst.last_mut() {
+            if !w.is_multiple_of(64) {
+                *last &= u64::MAX << (64 - w % 64);
+            }
+        }
+    }
+    out
+}
+
+/// `a & !b`, word by word (same sizes).
+pub(crate) fn and_not(a: &Bitmap, b: &Bitmap) -> Bitmap {
+    let mut out = a.clone();
+    for y in 0..out.height() {
+        for (o, s) in out.row_mut(y).iter_mut().zip(b.row(y)) {
+            *o &= !s;
+        }
+    }
+    out
+}
+
+/// The complement of `a`.
+pub(crate) fn inverted(a: &Bitmap) -> Bitmap {
+    let mut out = a.clone();
+    out.invert();
+    out
+}
+
+/// Whether any pixel of columns `x0..x1`, rows `y0..y1` is set.
+pub(crate) fn any_set(bm: &Bitmap, x0: usize, x1: usize, y0: usize, y1: usize) -> bool {
+    let x1 = x1.min(bm.width());
+    if x0 >= x1 {
+        return false;
+    }
+    for y in y0..y1.min(bm.height()) {
+        let row = bm.row(y);
+        let (w0, w1) = (x0 / 64, (x1 - 1) / 64);
+        for (w, word) in row.iter().enumerate().take(w1 + 1).skip(w0) {
+            let mut m = u64::MAX;
+            if w == w0 {
+                m &= u64::MAX >> (x0 % 64);
+            }
+            if w == w1 && !x1.is_multiple_of(64) {
+                m &= u64::MAX << (64 - x1 % 64);
+            }
+            if word & m != 0 {
+                return true;
+            }
+        }
+    }
+    false
+}
+
+/// One 8-connected group of set pixels.
+#[derive(Debug, Clone)]
+pub(crate) struct Component {
+    pub pixels: Vec<(u32, u32)>,
+}
+
+impl Component {
+    /// Mean pixel centre.
+    pub fn centroid(&self) -> (f64, f64) {
+        let n = self.pixels.len().max(1) as f64;
+        let (sx, sy) = self
+            .pixels
+            .iter()
+            .fold((0.0, 0.0), |(a, b), &(x, y)| (a + x as f64, b + y as f64));
+        (sx / n + 0.5, sy / n + 0.5)
+    }
+
+    /// (min x, min y, max x, max y), inclusive.
+    pub fn bbox(&self) -> (u32, u32, u32, u32) {
+        self.pixels
+            .iter()
+            .fold((u32::MAX, u32::MAX, 0, 0), |(a, b, c, d), &(x, y)| {
+                (a.min(x), b.min(y), c.max(x), d.max(y))
+            })
+    }
+}
+
+/// The 8-connected components of the set pixels of `bm`. Stops collecting after
+/// `max_pixels` pixels in all (what was found so far is returned).
+pub(crate) fn components(bm: &Bitmap, max_pixels: usize) -> Vec<Component> {
+    let mut work = bm.clone();
+    let (w, h) = (bm.width() as i64, bm.height() as i64);
+    let mut out = Vec::new();
+    let mut total = 0usize;
+    let mut stack: Vec<(u32, u32)> = Vec::new();
+    for y in 0..bm.height() {
+        for wi in 0..bm.words_per_row() {
+            loop {
+                let word = work.row(y)[wi];
+                if word == 0 {
+                    break;
+                }
+                let x = wi * 64 + word.leading_zeros() as usize;
+                work.set(x, y, false);
+                stack.push((x as u32, y as u32));
+                let mut pixels = Vec::new();
+                while let Some((px, py)) = stack.pop() {
+                    pixels.push((px, py));
+                    for dy in -1i64..=1 {
+                        for dx in -1i64..=1 {
+                            let (nx, ny) = (px as i64 + dx, py as i64 + dy);
+                            if nx >= 0
+                                && ny >= 0
+                                && nx < w
+                                && ny < h
+                                && work.get(nx as usize, ny as usize)
+                            {
+                                work.set(nx as usize, ny as usize, false);
+                                stack.push((nx as u32, ny as u32));
+                            }
+                        }
+                    }
+                }
+                total += pixels.len();
+                out.push(Component { pixels });
+                if total >= max_pixels {
+                    return out;
+                }
+            }
+        }
+    }
+    out
+}
+
+/// Connected-component labels (8-connected) of a bitmap's set pixels, kept as runs: per row
+/// the runs `[x0, x1)` with their label. Built by union-find over runs that touch between
+/// neighbouring rows, so the cost follows the number of runs, not of pixels.
+pub(crate) struct Labels {
+    rows: Vec<Vec<(u32, u32, u32)>>,
+}
+
+fn row_runs(row: &[u64], out: &mut Vec<(u32, u32)>) {
+    out.clear();
+    let mut open: Option<usize> = None;
+    for (wi, &w) in row.iter().enumerate() {
+        let base = wi * 64;
+        if w == 0 || w == u64::MAX {
+            match (w == 0, open) {
+                (true, Some(s)) => {
+                    out.push((s as u32, base as u32));
+                    open = None;
+                }
+                (false, None) => open = Some(base),
+                _ => {}
+            }
+            continue;
+        }
+        for b in 0..64 {
+            let set = (w >> (63 - b)) & 1 == 1;
+            match (set, open) {
+                (true, None) => open = Some(base + b),
+                (false, Some(s)) => {
+                    out.push((s as u32, (base + b) as u32));
+                    open = None;
+                }
+                _ => {}
+            }
+        }
+    }
+    if let Some(s) = open {
+        out.push((s as u32, (row.len() * 64) as u32));
+    }
+}
+
+fn find(parent: &mut [u32], mut i: u32) -> u32 {
+    while parent[i as usize] != i {
+        let g = parent[parent[i as usize] as usize];
+        parent[i as usize] = g;
+        i = g;
+    }
+    i
+}
+
+impl Labels {
+    pub fn of(bm: &Bitmap) -> Labels {
+        let mut rows: Vec<Vec<(u32, u32, u32)>> = Vec::with_capacity(bm.height());
+        let mut parent: Vec<u32> = Vec::new();
+        let mut runs = Vec::new();
+        for y in 0..bm.height() {
+            row_runs(bm.row(y), &mut runs);
+            let mut labelled = Vec::with_capacity(runs.len());
+            for &(a, b) in &runs {
+                let id = parent.len() as u32;
+                parent.push(id);
+                labelled.push((a, b, id));
+            }
+            if let Some(prev) = rows.last() {
+                // Runs touch (8-connected) when [a, b) and [c, d) overlap after growing one by
+                // a pixel each way.
+                let mut j = 0;
+                for &(a, b, id) in &labelled {
+                    while j < prev.len() && prev[j].1 < a {
+                        j += 1;
+                    }
+                    let mut k = j;
+                    while k < prev.len() && prev[k].0 <= b {
+                        let (ra, rb) = (find(&mut parent, id), find(&mut parent, prev[k].2));
+                        if ra != rb {
+                            parent[ra.max(rb) as usize] = ra.min(rb);
+                        }
+                        k += 1;
+                    }
+                }
+            }
+            rows.push(labelled);
+        }
+        for row in &mut rows {
+            for r in row.iter_mut() {
+                r.2 = find(&mut parent, r.2);
+            }
+        }
+        Labels { rows }
+    }
+
+    /// The label of pixel (x, y), if set.
+    pub fn at(&self, x: usize, y: usize) -> Option<u32> {
+        let row = self.rows.get(y)?;
+        let i = row.partition_point(|r| (r.1 as usize) <= x);
+        row.get(i).filter(|r| (r.0 as usize) <= x).map(|r| r.2)
+    }
+
+    /// How many different labels (up to `max`) the edge neighbours of `comp`'s pixels carry.
+    pub fn touching(&self, comp: &Component, max: usize) -> usize {
+        let mut seen: Vec<u32> = Vec::new();
+        for &(x, y) in &comp.pixels {
+            // Edge neighbours suffice: a thin part meets what it joins along its ends.
+            for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
+                let (nx, ny) = (x as i64 + dx, y as i64 + dy);
+                if nx < 0 || ny < 0 {
+                    continue;
+                }
+                if let Some(l) = self.at(nx as usize, ny as usize) {
+                    if !seen.contains(&l) {
+                        seen.push(l);
+                        if seen.len() >= max {
+                            return seen.len();
+                        }
+                    }
+                }
+            }
+        }
+        seen.len()
+    }
+}
+
+/// A feature's pixels with the physical pixel size, for width measurements.
+pub(crate) struct Probe<'a> {
+    pub bm: &'a Bitmap,
+    /// What pixels beyond the bitmap count as.
+    pub outside: bool,
+    /// Pixel size along x and y, mm.
+    pub mm_x: f64,
+    pub mm_y: f64,
+}
+
+impl Probe<'_> {
+    fn inside(&self, x: i64, y: i64) -> bool {
+        if x < 0 || y < 0 || x >= self.bm.width() as i64 || y >= self.bm.height() as i64 {
+            return self.outside;
+        }
+        self.bm.get(x as usize, y as usize)
+    }
+
+    /// The distance (mm) from the centre of pixel (`x`, `y`) to the nearest centre of a pixel
+    /// outside the feature, and the unit direction to it (mm space), searched up to `max_mm`.
+    /// With `cone = Some((ux, uy, cos))`, only pixels whose direction is within the angle of
+    /// cosine `cos` about (ux, uy) count.
+    fn nearest_outside(
+        &self,
+        x: i64,
+        y: i64,
+        max_mm: f64,
+        cone: Option<(f64, f64, f64)>,
+    ) -> Option<(f64, f64, f64)> {
+        let step = self.mm_x.min(self.mm_y);
+        let rings = (max_mm / step).ceil() as i64 + 1;
+        let mut best: Option<(f64, f64, f64)> = None; // (squared distance, ex, ey)
+        for k in 1..=rings {
+            let mut visit = |dx: i64, dy: i64| {
+                if self.inside(x + dx, y + dy) {
+                    return;
+                }
+                let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
+                let d2 = ex * ex + ey * ey;
+                if best.is_some_and(|b| d2 >= b.0) {
+                    return;
+                }
+                if let Some((ux, uy, cos)) = cone {
+                    if ex * ux + ey * uy < cos * d2.sqrt() {
+                        return;
+                    }
+                }
+                best = Some((d2, ex, ey));
+            };
+            for d in -k..=k {
+                visit(d, -k);
+                visit(d, k);
+            }
+            for d in (-k + 1)..k {
+                visit(-k, d);
+                visit(k, d);
+            }
+            // Every pixel of the next ring is at least (k + 1)·step away.
+            let next = (k + 1) as f64 * step;
+            if best.is_some_and(|b| b.0 <= next * next) || next > max_mm {
+                break;
+            }
+        }
+        best.map(|(d2, ex, ey)| {
+            let d = d2.sqrt();
+            (d, ex / d, ey / d)
+        })
+    }
+
+    /// The local width (mm) of the feature through pixel (`x`, `y`), or `None` when it is at
+    /// least `cap_mm` (the feature is not thin here). See the module docs.
+    pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
+        let px = self.mm_x.max(self.mm_y);
+        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None)?;
+        let cone = Some((-ux, -uy, OPPOSITE_COS));
+        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone)?;
+        // Each outside centre lies half a pixel (along the direction) beyond the edge.
+        let pixel_along = (ux * self.mm_x).hypot(uy * self.mm_y);
+        let width = d1 + d2 - pixel_along;
+        (width < cap_mm).then_some(width)
+    }
+}
+
+/// The far side is looked for within 40° of straight across: the edge beside a pixel at a
+/// stair step of a slanted band runs at 45° or more from "across" and is left out.
+const OPPOSITE_COS: f64 = 0.766_044_443_118_978; // cos 40°
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn crop_shifts_words() {
+        let mut a = Bitmap::new(200, 3);
+        a.set(70, 1, true);
+        a.set(130, 2, true);
+        let c = crop(&a, 65, 1, 100, 2);
+        assert!(c.get(5, 0));
+        assert!(c.get(65, 1));
+        assert_eq!(c.count_ones(), 2);
+    }
+
+    #[test]
+    fn band_width_is_exact_along_axes() {
+        // A vertical band 7 pixels wide: every pixel measures 7 pixels.
+        let mut a = Bitmap::new(40, 40);
+        for y in 0..40 {
+            a.fill_span(y, 10, 17, true);
+        }
+        let p = Probe {
+            bm: &a,
+            outside: false,
+            mm_x: 0.01,
+            mm_y: 0.01,
+        };
+        for x in 10..17 {
+            let w = p.width_at(x, 20, 1.0).unwrap();
+            assert!((w - 0.07).abs() < 1e-3, "x {x}: {w}");
+        }
+        assert!(p.width_at(12, 20, 0.05).is_none());
+    }
+
+    #[test]
+    fn run_labels_join_diagonal_neighbours() {
+        let mut a = Bitmap::new(130, 4);
+        a.fill_span(0, 0, 70, true);
+        a.set(70, 1, true); // diagonal to the end of the first run
+        a.fill_span(3, 100, 130, true);
+        let l = Labels::of(&a);
+        assert_eq!(l.at(0, 0), l.at(70, 1));
+        assert!(l.at(100, 3).is_some());
+        assert_ne!(l.at(0, 0), l.at(129, 3));
+        assert_eq!(l.at(75, 0), None);
+    }
+
+    #[test]
+    fn components_are_eight_connected() {
+        let mut a = Bitmap::new(10, 10);
+        a.set(1, 1, true);
+        a.set(2, 2, true);
+        a.set(7, 7, true);
+        let c = components(&a, usize::MAX);
+        assert_eq!(c.len(), 2);
+        assert!(any_set(&a, 7, 8, 7, 8));
+        assert!(!any_set(&a, 3, 7, 0, 10));
+    }
+}

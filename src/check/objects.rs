@@ -1,0 +1,170 @@
+//! What the check reads besides the film's pixels: the drill holes (annular rings) and the
+//! layer image's objects (copper and clearances that leave nothing on the film).
+
+use super::area::Area;
+use super::measure::any_set;
+use super::{finding, FilmInput, Finding, FindingKind, ProcessLimits, BOARD_MARGIN_MM};
+use crate::image::{Bounds, Point, Polarity, Shape};
+use crate::process::DrillMarkStyle;
+use crate::raster::Bitmap;
+
+/// Drawn objects narrower than this are not reported as lost: EDA programs leave slivers of a
+/// fraction of a micrometre in pours (board 01 of the real-world corpus has 0.2 µm squares),
+/// and nothing that narrow is meant to be made.
+const MIN_DRAWN_MM: f64 = 0.005;
+/// A drill hole on a copper film: centre, finished radius, and the radius after etching and
+/// drilling (the larger of the mark and the drill).
+#[derive(Debug, Clone, Copy)]
+pub(super) struct HoleSite {
+    pub at: Point,
+    pub hole_mm: f64,
+    pub mark_r: f64,
+    pub open_r: f64,
+}
+
+pub(super) fn hole_sites(input: &FilmInput<'_>) -> Vec<HoleSite> {
+    let mark_r = |hole: f64| match input.recipe.drill_marks {
+        DrillMarkStyle::Full => hole / 2.0,
+        DrillMarkStyle::Pilot => input.recipe.pilot_diameter_mm / 2.0,
+        DrillMarkStyle::None => 0.0,
+    };
+    let mut out = Vec::new();
+    for d in input.drills {
+        for h in &d.holes {
+            let Some(tool) = d.tools.get(h.tool) else {
+                continue;
+            };
+            let hole = tool.diameter_mm;
+            let m = mark_r(hole);
+            out.push(HoleSite {
+                at: h.at,
+                hole_mm: hole,
+                mark_r: m,
+                open_r: m.max(hole / 2.0),
+            });
+        }
+    }
+    out
+}
+
+/// The copper ring around `hole` on `material` (crop pixels): `None` when no copper is near
+/// the hole at all (a hole in a bare area) or the ring is at least `min_ring` wide.
+///
+/// Looks only at the annulus from the hole's edge to `min_ring` (plus a pixel) beyond it, row
+/// by row; copper counts as "near" in that annulus or halfway between the mark and the hole's
+/// edge (a pad no larger than its drill still shows there when the mark is a pilot dot).
+pub(super) fn ring_of(
+    material: &Bitmap,
+    area: &Area,
+    hole: &HoleSite,
+    min_ring: f64,
+) -> Option<f64> {
+    let need = hole.open_r + min_ring;
+    let reach = need + area.pixel_mm();
+    let (cx, cy) = area.to_px(hole.at);
+    let get = |x: i64, y: i64| x >= 0 && y >= 0 && material.get(x as usize, y as usize);
+    let mid = 0.5 * (hole.mark_r + hole.open_r);
+    let mut copper_near = hole.open_r > hole.mark_r
+        && (0..8).any(|k| {
+            let a = k as f64 * std::f64::consts::FRAC_PI_4;
+            get(
+                (cx + mid * a.cos() / area.mm_x).floor() as i64,
+                (cy + mid * a.sin() / area.mm_y).floor() as i64,
+            )
+        });
+    // Squared distances in the loop; one square root at the end.
+    let (need2, open2, reach2) = (need * need, hole.open_r * hole.open_r, reach * reach);
+    let mut nearest_gap = f64::INFINITY;
+    let ry = (reach / area.mm_y).ceil() as i64 + 1;
+    let iy = cy.floor() as i64;
+    for y in (iy - ry)..=(iy + ry) {
+        let dy = (y as f64 + 0.5 - cy) * area.mm_y;
+        let rest2 = reach2 - dy * dy;
+        if rest2 < 0.0 {
+            continue;
+        }
+        // Columns whose centres lie within `reach` on this row.
+        let half = rest2.sqrt() / area.mm_x;
+        let (x0, x1) = (
+            (cx - half - 0.5).floor() as i64,
+            (cx + half - 0.5).ceil() as i64,
+        );
+        for x in x0..=x1 {
+            let dx = (x as f64 + 0.5 - cx) * area.mm_x;
+            let d2 = dx * dx + dy * dy;
+            if d2 < open2 || d2 > reach2 {
+                continue;
+            }
+            if get(x, y) {
+                copper_near |= d2 <= need2;
+            } else if d2 < nearest_gap {
+                nearest_gap = d2;
+            }
+        }
+    }
+    if !copper_near || !nearest_gap.is_finite() {
+        return None;
+    }
+    let nearest_gap = nearest_gap.sqrt();
+    // The nearest clear pixel's centre lies half a pixel beyond the copper's edge.
+    let ring = (nearest_gap - 0.5 * area.pixel_mm() - hole.open_r).max(0.0);
+    (ring < min_ring - 0.5 * area.pixel_mm()).then_some(ring)
+}
+
+/// Objects of the layer image narrower than `limit` that leave nothing on the film: copper
+/// with no copper pixel in its box, or a clearance with no clear pixel in its box.
+pub(super) fn vanished(
+    input: &FilmInput<'_>,
+    material: &Bitmap,
+    area: &Area,
+    board: &Bounds,
+    limits: &ProcessLimits,
+) -> Vec<Finding> {
+    let Some(image) = input.image else {
+        return Vec::new();
+    };
+    let keep = board.grown(BOARD_MARGIN_MM);
+    let (w, h) = (material.width(), material.height());
+    let mut out = Vec::new();
+    for o in &image.objects {
+        let is_material = (o.polarity == Polarity::Dark) == input.recipe.dark_is_material;
+        let b = o.shape.bounds();
+        let narrow = match &o.shape {
+            Shape::Stroke { width, .. } => *width,
+            Shape::Disc { diameter, .. } => *diameter,
+            _ => b.width().min(b.height()),
+        };
+        let limit = if is_material {
+            limits.min_copper_width_mm
+        } else {
+            limits.min_gap_mm
+        };
+        if narrow < MIN_DRAWN_MM || narrow >= limit || b.is_empty() || !keep.contains(&b) {
+            continue;
+        }
+        let (x0, x1, y0, y1) = area.pixels_in(&b, w, h);
+        let present = if is_material {
+            any_set(material, x0, x1, y0, y1)
+        } else {
+            (y0..y1).any(|y| (x0..x1).any(|x| !material.get(x, y)))
+        };
+        if !present {
+            let kind = if is_material {
+                FindingKind::CopperVanishes
+            } else {
+                FindingKind::GapCloses
+            };
+            let at = Point::new(0.5 * (b.min_x + b.max_x), 0.5 * (b.min_y + b.max_y));
+            out.push(finding(
+                input,
+                kind,
+                at,
+                0.0,
+                limit,
+                [b.width(), b.height()],
+                Some(narrow),
+            ));
+        }
+    }
+    out
+}

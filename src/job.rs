@@ -108,3 +108,37 @@ pub fn parse_layer(text: &str) -> Option<LayerId> {
         _ => None,
     }
 }
+
+/// Reads the inputs of a board and its job file: `job_path` when given, else a
+/// `*.umbra-job.toml` among the inputs. An empty input is an error. Messages are for the user.
+pub fn collect_board_inputs(
+    paths: &[std::path::PathBuf],
+    job_path: Option<&std::path::Path>,
+    limits: &crate::limits::Limits,
+) -> Result<(Vec<crate::load::InputFile>, Option<Job>), String> {
+    let inputs = crate::load::collect_inputs(paths, limits).map_err(|e| e.to_string())?;
+    if inputs.is_empty() {
+        return Err(format!(
+            "no files found in {}",
+            paths
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ));
+    }
+    let job = match job_path {
+        Some(p) => {
+            let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
+            Some(Job::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())?)
+        }
+        None => match inputs.iter().find(|f| f.name.ends_with(JOB_FILE_SUFFIX)) {
+            Some(f) => Some(
+                Job::from_toml(&String::from_utf8_lossy(&f.bytes), &f.name)
+                    .map_err(|e| e.to_string())?,
+            ),
+            None => None,
+        },
+    };
+    Ok((inputs, job))
+}

@@ -1,9 +1,8 @@
 //! The `umbra` command line: arguments → library calls → printing. No film logic lives here.
 
 use clap::{Args, Parser, Subcommand};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
-use umbra::job::Job;
 use umbra::load::{self, Content};
 use umbra::process::Profile;
 
@@ -159,16 +158,6 @@ fn main() -> ExitCode {
     }
 }
 
-fn read_profile(path: Option<&Path>) -> Result<Profile, String> {
-    match path {
-        None => Ok(Profile::default()),
-        Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
-            Profile::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())
-        }
-    }
-}
-
 /// Today's date (UTC) as YYYY-MM-DD, from the civil-from-days algorithm for the proleptic
 /// Gregorian calendar.
 fn today() -> String {
@@ -203,7 +192,7 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
             json,
             dump,
         } => {
-            let limits = read_profile(profile.as_deref())?.input_limits;
+            let limits = Profile::from_path(profile.as_deref())?.input_limits;
             let board = load::load_paths(&inputs, &limits).map_err(|e| e.to_string())?;
             if dump {
                 for f in &board.files {
@@ -255,7 +244,7 @@ fn run(cli: Cli) -> Result<ExitCode, String> {
 }
 
 fn films(a: FilmsArgs) -> Result<ExitCode, String> {
-    let mut profile = read_profile(a.profile.as_deref())?;
+    let mut profile = Profile::from_path(a.profile.as_deref())?;
     if let Some(d) = &a.device {
         profile.device.kind = d.parse()?;
         profile.validate()?;
@@ -268,33 +257,7 @@ fn films(a: FilmsArgs) -> Result<ExitCode, String> {
             a.out.display()
         ));
     }
-    let inputs = load::collect_inputs(&a.inputs, limits).map_err(|e| e.to_string())?;
-    if inputs.is_empty() {
-        return Err(format!(
-            "no files found in {}",
-            a.inputs
-                .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ));
-    }
-    let job = match &a.job {
-        Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
-            Some(Job::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())?)
-        }
-        None => match inputs
-            .iter()
-            .find(|f| f.name.ends_with(umbra::job::JOB_FILE_SUFFIX))
-        {
-            Some(f) => Some(
-                Job::from_toml(&String::from_utf8_lossy(&f.bytes), &f.name)
-                    .map_err(|e| e.to_string())?,
-            ),
-            None => None,
-        },
-    };
+    let (inputs, job) = umbra::job::collect_board_inputs(&a.inputs, a.job.as_deref(), limits)?;
     let show = !a.quiet && !a.json;
     let bar = indicatif::ProgressBar::new_spinner();
     if !show {
@@ -332,7 +295,7 @@ fn films(a: FilmsArgs) -> Result<ExitCode, String> {
 }
 
 fn render(a: RenderArgs) -> Result<ExitCode, String> {
-    let mut profile = read_profile(a.profile.as_deref())?;
+    let mut profile = Profile::from_path(a.profile.as_deref())?;
     let limits = &profile.input_limits.clone();
     if let Some(d) = a.dpi {
         profile.printer.dpi = d;

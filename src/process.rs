@@ -216,6 +216,19 @@ impl Profile {
         Ok(p)
     }
 
+    /// Reads the profile at `path`, or the defaults when there is none. Messages are for the
+    /// user.
+    pub fn from_path(path: Option<&std::path::Path>) -> Result<Profile, String> {
+        match path {
+            None => Ok(Profile::default()),
+            Some(p) => {
+                let text =
+                    std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
+                Profile::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())
+            }
+        }
+    }
+
     /// Checks value ranges that TOML types cannot express.
     pub fn validate(&self) -> Result<(), String> {
         let pr = &self.printer;

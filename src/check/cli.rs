@@ -1,11 +1,10 @@
 //! `umbra check`: renders the films as `umbra films` would (without sheets), checks them,
 //! draws the proof picture and prints the table.
 
-use crate::job::Job;
 use crate::load;
 use crate::process::Profile;
 use clap::{Args, ValueEnum};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 /// What `--deny` turns into a failing exit code.
@@ -43,48 +42,12 @@ pub struct CheckArgs {
     pub board_name: Option<String>,
 }
 
-fn read_profile(path: Option<&Path>) -> Result<Profile, String> {
-    match path {
-        None => Ok(Profile::default()),
-        Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
-            Profile::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())
-        }
-    }
-}
-
 /// Runs `umbra check`. Errors are messages for the user.
 pub fn run(a: CheckArgs) -> Result<ExitCode, String> {
-    let profile = read_profile(a.profile.as_deref())?;
+    let profile = Profile::from_path(a.profile.as_deref())?;
     let limits = &profile.input_limits;
     profile.limits.validate()?;
-    let inputs = load::collect_inputs(&a.inputs, limits).map_err(|e| e.to_string())?;
-    if inputs.is_empty() {
-        return Err(format!(
-            "no files found in {}",
-            a.inputs
-                .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ));
-    }
-    let job = match &a.job {
-        Some(p) => {
-            let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
-            Some(Job::from_toml(&text, &p.display().to_string()).map_err(|e| e.to_string())?)
-        }
-        None => match inputs
-            .iter()
-            .find(|f| f.name.ends_with(crate::job::JOB_FILE_SUFFIX))
-        {
-            Some(f) => Some(
-                Job::from_toml(&String::from_utf8_lossy(&f.bytes), &f.name)
-                    .map_err(|e| e.to_string())?,
-            ),
-            None => None,
-        },
-    };
+    let (inputs, job) = crate::job::collect_board_inputs(&a.inputs, a.job.as_deref(), limits)?;
     let board = load::load_board(&inputs, limits).map_err(|e| e.to_string())?;
     let board_name = a
         .board_name

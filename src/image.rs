@@ -311,6 +311,29 @@ impl Contour {
 }
 
 impl Shape {
+    /// Whether every number in the shape is finite. Renderers skip shapes that are not (the
+    /// interpreter never makes them; hand-built images might).
+    pub fn is_finite(&self) -> bool {
+        let pf = |p: &Point| p.x.is_finite() && p.y.is_finite();
+        match self {
+            Shape::Disc { center, diameter } => pf(center) && diameter.is_finite(),
+            Shape::Stroke {
+                start,
+                end,
+                arc,
+                width,
+            } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
+            Shape::Polygon(c) => {
+                pf(&c.start)
+                    && c.segments.iter().all(|s| match s {
+                        Segment::Line { to } => pf(to),
+                        Segment::Arc { to, center, .. } => pf(to) && pf(center),
+                    })
+            }
+            Shape::Composite(parts) => parts.iter().all(|(_, s)| s.is_finite()),
+        }
+    }
+
     pub fn bounds(&self) -> Bounds {
         let mut b = Bounds::EMPTY;
         match self {

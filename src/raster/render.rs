@@ -104,7 +104,7 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
 }
 
 fn prepare_object(o: &Object, map: &DeviceMap) -> Option<Prepared> {
-    if !shapes::shape_is_finite(&o.shape) {
+    if !o.shape.is_finite() {
         return None;
     }
     let b = o.shape.bounds();

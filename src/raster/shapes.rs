@@ -103,28 +103,6 @@ impl Scratch {
     }
 }
 
-/// Whether every number in the shape is finite (non-finite objects are skipped).
-pub(crate) fn shape_is_finite(shape: &Shape) -> bool {
-    let pf = |p: &Point| p.x.is_finite() && p.y.is_finite();
-    match shape {
-        Shape::Disc { center, diameter } => pf(center) && diameter.is_finite(),
-        Shape::Stroke {
-            start,
-            end,
-            arc,
-            width,
-        } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
-        Shape::Polygon(c) => {
-            pf(&c.start)
-                && c.segments.iter().all(|s| match s {
-                    Segment::Line { to } => pf(to),
-                    Segment::Arc { to, center, .. } => pf(to) && pf(center),
-                })
-        }
-        Shape::Composite(parts) => parts.iter().all(|(_, s)| shape_is_finite(s)),
-    }
-}
-
 fn unit(dx: f64, dy: f64) -> (f64, f64) {
     let l = dx.hypot(dy);
     if l > 0.0 {

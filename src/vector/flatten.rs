@@ -301,7 +301,7 @@ impl Flattener {
     /// The cover of `shape` (module docs). Non-finite shapes and shapes without area give
     /// nothing.
     pub fn rings(&self, shape: &Shape) -> Vec<Ring> {
-        if !shape_is_finite(shape) {
+        if !shape.is_finite() {
             return Vec::new();
         }
         match shape {
@@ -391,29 +391,6 @@ fn is_convex_ccw(r: &Ring) -> bool {
         }
     }
     (turning - TAU).abs() < 1e-6
-}
-
-/// Whether every number in the shape is finite (non-finite objects are skipped, as by the
-/// raster path).
-pub fn shape_is_finite(shape: &Shape) -> bool {
-    let pf = |p: &Point| p.x.is_finite() && p.y.is_finite();
-    match shape {
-        Shape::Disc { center, diameter } => pf(center) && diameter.is_finite(),
-        Shape::Stroke {
-            start,
-            end,
-            arc,
-            width,
-        } => pf(start) && pf(end) && width.is_finite() && arc.is_none_or(|(c, _)| pf(&c)),
-        Shape::Polygon(c) => {
-            pf(&c.start)
-                && c.segments.iter().all(|s| match s {
-                    Segment::Line { to } => pf(to),
-                    Segment::Arc { to, center, .. } => pf(to) && pf(center),
-                })
-        }
-        Shape::Composite(parts) => parts.iter().all(|(_, s)| shape_is_finite(s)),
-    }
 }
 
 #[cfg(test)]

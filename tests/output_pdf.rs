@@ -1,8 +1,9 @@
 //! PDF output: exact page sizes, actual-size printing, and the page rasterized by poppler's
 //! `pdftoppm` (Debian poppler-utils, an independent PDF renderer) compared pixel for pixel.
 
+mod poppler;
+use poppler::{poppler_tool, read_pbm};
 use std::fs;
-use std::path::Path;
 use std::process::Command;
 use umbra::output::pdf::{mm_to_pt, pdf_bytes, write_pdf, LineArt, PageSize, PdfPage, PlacedImage};
 use umbra::raster::Bitmap;
@@ -20,14 +21,6 @@ fn media_boxes(pdf: &[u8]) -> Vec<Vec<f64>> {
                 .collect()
         })
         .collect()
-}
-
-fn tool_available(name: &str) -> bool {
-    let found = Command::new(name).arg("-v").output().is_ok();
-    if !found && std::env::var("CI").as_deref() == Ok("true") {
-        panic!("{name} (poppler-utils) is required when CI=true");
-    }
-    found
 }
 
 #[test]
@@ -60,7 +53,7 @@ fn page_sizes_are_exact_in_points() {
     assert!(pdf_bytes(&[]).is_err());
 
     // pdfinfo (poppler-utils) reads the same page sizes.
-    if !tool_available("pdfinfo") {
+    if !poppler_tool("pdfinfo") {
         return;
     }
     let dir = tempfile::tempdir().unwrap();
@@ -76,35 +69,8 @@ fn page_sizes_are_exact_in_points() {
     assert!(info.contains("612 x 792 pts (letter)"), "{info}");
 }
 
-/// Reads a binary PBM (netpbm P4: 1 = black, rows MSB-first, padded to bytes).
-fn read_pbm(path: &Path) -> (usize, usize, Vec<u8>) {
-    let data = fs::read(path).unwrap();
-    let mut fields = Vec::new();
-    let mut i = 0;
-    while fields.len() < 3 {
-        while data[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        if data[i] == b'#' {
-            while data[i] != b'\n' {
-                i += 1;
-            }
-            continue;
-        }
-        let s = i;
-        while !data[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        fields.push(String::from_utf8_lossy(&data[s..i]).into_owned());
-    }
-    assert_eq!(fields[0], "P4");
-    let (w, h) = (fields[1].parse().unwrap(), fields[2].parse().unwrap());
-    (w, h, data[i + 1..].to_vec())
-}
-
-fn pbm_black(pbm: &(usize, usize, Vec<u8>), x: usize, y: usize) -> bool {
-    let stride = pbm.0.div_ceil(8);
-    (pbm.2[y * stride + x / 8] >> (7 - x % 8)) & 1 == 1
+fn pbm_black(pbm: &(usize, usize, Vec<bool>), x: usize, y: usize) -> bool {
+    pbm.2[y * pbm.0 + x]
 }
 
 /// A film with shapes of every slope (a disc ring, diagonals, a checker corner).
@@ -125,7 +91,7 @@ fn film(w: usize, h: usize) -> Bitmap {
 
 #[test]
 fn poppler_rasterizes_the_page_like_our_bitmap() {
-    if !tool_available("pdftoppm") {
+    if !poppler_tool("pdftoppm") {
         return;
     }
     let dpi = 300.0;
@@ -173,13 +139,13 @@ fn poppler_rasterizes_the_page_like_our_bitmap() {
             .status()
             .unwrap();
         assert!(status.success());
-        read_pbm(&prefix.with_extension("pbm"))
+        read_pbm(&fs::read(prefix.with_extension("pbm")).unwrap())
     };
 
     // Compare an image with the page pixels it covers. Allowed differences: only in the
     // outermost pixel ring of the image (where the viewer's rounding of the placement
     // rectangle decides), at most one ring's worth; none inside.
-    let check = |pbm: &(usize, usize, Vec<u8>), bmp: &Bitmap, left: usize, bottom: usize| {
+    let check = |pbm: &(usize, usize, Vec<bool>), bmp: &Bitmap, left: usize, bottom: usize| {
         let top = pbm.1 - bottom - bmp.height();
         let (w, h) = (bmp.width(), bmp.height());
         let mut edge_diffs = 0;

@@ -5,6 +5,8 @@
 //! (docs/film-rules.md, "Mirroring": films laid printed side to printed side have their
 //! marks coincide).
 
+mod poppler;
+use poppler::{poppler_tool, read_pbm};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use umbra::films::make_films;
@@ -71,57 +73,6 @@ fn read_png(path: &Path) -> Png {
         dims,
         black,
     }
-}
-
-/// Whether the external tool runs. Missing tools skip the test, except under CI=true.
-fn have_tool(name: &str) -> bool {
-    let found = Command::new(name).arg("-v").output().is_ok();
-    if !found && std::env::var("CI").as_deref() == Ok("true") {
-        panic!("{name} (poppler-utils) is required when CI=true");
-    }
-    if !found {
-        eprintln!("skipped: {name} is not installed (poppler-utils)");
-    }
-    found
-}
-
-/// A binary PBM (P4) as written by `pdftoppm -mono`: rows packed MSB-first, 1 = black
-/// (Netpbm PBM format).
-fn read_pbm(path: &Path) -> (usize, usize, Vec<bool>) {
-    let data = std::fs::read(path).unwrap();
-    // Header: "P4", whitespace, width, whitespace, height, one whitespace byte, then data.
-    // Comments (#…) may appear between the fields.
-    let mut fields = Vec::new();
-    let mut i = 0;
-    while fields.len() < 3 {
-        while data[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        if data[i] == b'#' {
-            while data[i] != b'\n' {
-                i += 1;
-            }
-            continue;
-        }
-        let start = i;
-        while !data[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        fields.push(String::from_utf8_lossy(&data[start..i]).to_string());
-    }
-    i += 1;
-    assert_eq!(fields[0], "P4");
-    let w: usize = fields[1].parse().unwrap();
-    let h: usize = fields[2].parse().unwrap();
-    let stride = w.div_ceil(8);
-    let mut black = Vec::with_capacity(w * h);
-    for y in 0..h {
-        for x in 0..w {
-            let byte = data[i + y * stride + x / 8];
-            black.push((byte >> (7 - x % 8)) & 1 == 1);
-        }
-    }
-    (w, h, black)
 }
 
 #[test]
@@ -221,7 +172,7 @@ fn png_at_600_and_1200_dpi_carries_phys_bit_depth_one_and_a_manifest() {
 
 #[test]
 fn pdf_rasterized_by_poppler_equals_the_png() {
-    if !have_tool("pdftoppm") || !have_tool("pdftocairo") || !have_tool("pdfinfo") {
+    if !poppler_tool("pdftoppm") || !poppler_tool("pdftocairo") || !poppler_tool("pdfinfo") {
         return;
     }
     let dir = tempfile::tempdir().unwrap();
@@ -298,7 +249,7 @@ fn pdf_rasterized_by_poppler_equals_the_png() {
         .output()
         .unwrap();
     assert!(r.status.success(), "{}", String::from_utf8_lossy(&r.stderr));
-    let (pw, ph, black) = read_pbm(&dir.path().join("page.pbm"));
+    let (pw, ph, black) = read_pbm(&std::fs::read(dir.path().join("page.pbm")).unwrap());
     // The raster is the film's size exactly (the page is a whole number of film pixels).
     assert_eq!((pw, ph), (w, h));
     let at = |x: usize, y: usize| png.black[y * w + x];

@@ -12,6 +12,7 @@
 
 mod vector_support;
 
+mod poppler;
 use std::path::Path;
 use std::process::Command;
 use umbra::film::compose::render_film;
@@ -166,42 +167,10 @@ fn render_pdf(vf: &VectorFilm, dir: &Path) -> Bitmap {
         .status()
         .expect("run pdftoppm");
     assert!(st.success());
-    read_pbm(&std::fs::read(dir.join("film.pbm")).expect("pbm"))
-}
-
-/// A binary PBM (P4, Netpbm format): header, then rows packed MSB-first, 1 = black.
-fn read_pbm(bytes: &[u8]) -> Bitmap {
-    let mut fields = Vec::new();
-    let mut i = 0;
-    while fields.len() < 3 {
-        while bytes[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        if bytes[i] == b'#' {
-            while bytes[i] != b'\n' {
-                i += 1;
-            }
-            continue;
-        }
-        let s = i;
-        while !bytes[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        fields.push(String::from_utf8_lossy(&bytes[s..i]).to_string());
-    }
-    i += 1;
-    assert_eq!(fields[0], "P4");
-    let w: usize = fields[1].parse().unwrap();
-    let h: usize = fields[2].parse().unwrap();
-    let stride = w.div_ceil(8);
+    let (w, h, black) = poppler::read_pbm(&std::fs::read(dir.join("film.pbm")).expect("pbm"));
     let mut b = Bitmap::new(w, h);
-    for y in 0..h {
-        for x in 0..w {
-            let byte = bytes[i + y * stride + x / 8];
-            if byte & (0x80 >> (x % 8)) != 0 {
-                b.set(x, y, true);
-            }
-        }
+    for (i, _) in black.iter().enumerate().filter(|(_, &k)| k) {
+        b.set(i % w, i / w, true);
     }
     b
 }

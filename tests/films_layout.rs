@@ -9,7 +9,7 @@ use std::path::Path;
 use umbra::film::font;
 use umbra::image::Point;
 
-/// Caption drawing of src/films.rs (no outside source: the caption is umbra's own): 1.6 mm
+/// Caption drawing of src/films/sheets.rs (no outside source: the caption is umbra's own): 1.6 mm
 /// capitals, pen 0.16 mm, baseline 1 mm above the piece starting half a pen in from its left
 /// edge, text
 /// "<film> - <mirrored|as drawn>[ - copy k/n][ - tile row r col c of RxC]".

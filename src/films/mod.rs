@@ -61,6 +61,16 @@ pub fn run(
     progress: &dyn Fn(&str),
 ) -> Result<Summary, FilmsError> {
     if profile.device.kind != crate::device::DeviceKind::Printer {
+        if opts.vector {
+            // Silently dropping the request would leave the user looking for files that
+            // were never written.
+            return Err(FilmsError::Input(format!(
+                "--vector makes vector sheets for a printer, but the device is `{}`, whose \
+                 films are images at the device's own pixel grid; leave out --vector or use \
+                 --device printer",
+                profile.device.kind.name()
+            )));
+        }
         return crate::device::run(board, profile, job, opts, progress);
     }
     let staged = StagedDir::new(&opts.out, opts.force)?;
@@ -106,6 +116,7 @@ struct SheetsWritten {
     reports: Vec<FilmReport>,
     sheets: Vec<SheetReport>,
     tooling: Option<String>,
+    vector_files: Vec<String>,
 }
 
 /// Lays out the films and writes the sheets (PNG), the PDF and the tooling-hole file.
@@ -161,10 +172,12 @@ fn write_sheets(
         .map_err(|e| FilmsError::Output(e.to_string()))?;
     drop(pages);
     drop(pdf_pages_bitmaps);
+    let mut vector_files = Vec::new();
     if vector {
         progress("composing vector films");
-        crate::vector::write_vector_outputs(staged, board, films, frame, &layout, profile)
-            .map_err(FilmsError::Output)?;
+        vector_files =
+            crate::vector::write_vector_outputs(staged, board, films, frame, &layout, profile)
+                .map_err(FilmsError::Output)?;
     }
     let mut tooling = None;
     if profile.films.tooling_holes {
@@ -187,6 +200,7 @@ fn write_sheets(
         reports,
         sheets,
         tooling,
+        vector_files,
     })
 }
 
@@ -236,6 +250,7 @@ fn finish(
         device: crate::device::DeviceKind::Printer,
         images: Vec::new(),
         check: Some(check),
+        vector_files: written.vector_files,
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;

@@ -76,6 +76,9 @@ pub struct Summary {
     /// The process check of the films and the proof picture (`proof.png`); for printer
     /// sheets only (`umbra check` checks any board at the printer's settings).
     pub check: Option<crate::check::CheckReport>,
+    /// The vector films written with `--vector`: `films-vector.pdf` and one SVG per film
+    /// (empty without `--vector`).
+    pub vector_files: Vec<String>,
 }
 
 pub(crate) fn report_of(f: &MadeFilm) -> FilmReport {
@@ -182,6 +185,12 @@ pub fn summary_text(s: &Summary, out: &Path) -> String {
                 .map(|t| format!(", {t}"))
                 .unwrap_or_default()
         ));
+        if !s.vector_files.is_empty() {
+            out_s.push_str(&format!(
+                "vector films (exact edge offset, for drivers and print shops that rasterize themselves): {}\n",
+                s.vector_files.join(", ")
+            ));
+        }
     }
     if let Some(check) = &s.check {
         out_s.push('\n');

@@ -54,8 +54,31 @@ fn caption_box(p: &Value, text: &str) -> [f64; 4] {
 fn caption_origin(p: &Value) -> Point {
     Point::new(
         f(&p["x_mm"]) + CAPTION_PEN_MM / 2.0,
-        f(&p["y_mm"]) + f(&p["height_mm"]) + 1.0,
+        f(&p["y_mm"]) + f(&p["height_mm"]) + bands_of(p)[2] + 1.0,
     )
+}
+
+/// Tile mark bands of docs/sheets.md "Tile alignment marks" (umbra's own rule, no outside
+/// source): 3 mm beside the film block, on the top and bottom edges of the tiles of a film
+/// with several columns and on the left and right edges of those of a film with several rows;
+/// none for a whole film. [left, right, top, bottom] in mm.
+const TILE_BAND_MM: f64 = 3.0;
+
+fn bands_of(p: &Value) -> [f64; 4] {
+    let Some(t) = p["tile"].as_array() else {
+        return [0.0; 4];
+    };
+    let (rows, cols) = (t[2].as_u64().unwrap(), t[3].as_u64().unwrap());
+    let along = if rows > 1 { TILE_BAND_MM } else { 0.0 };
+    let across = if cols > 1 { TILE_BAND_MM } else { 0.0 };
+    [along, along, across, across]
+}
+
+/// The piece with its mark bands, sheet mm [x0, y0, x1, y1].
+fn reserved_rect_of(p: &Value) -> [f64; 4] {
+    let r = rect_of(p);
+    let b = bands_of(p);
+    [r[0] - b[0], r[1] - b[3], r[2] + b[1], r[3] + b[2]]
 }
 
 fn rect_of(p: &Value) -> [f64; 4] {
@@ -115,11 +138,17 @@ fn check_sheets(out: &Path, m: &Value, rules: &SheetRules) -> usize {
                     continue;
                 }
                 let rect = rect_of(p);
+                // The piece and its mark bands stay printable (docs/sheets.md).
+                let reserved = reserved_rect_of(p);
                 assert!(
-                    inside(&rect, &printable, 1e-6),
-                    "sheet {number}: {} at {rect:?} leaves the printable area {printable:?}",
+                    inside(&reserved, &printable, 1e-6),
+                    "sheet {number}: {} at {reserved:?} (with mark bands) leaves the printable area {printable:?}",
                     film["key"]
                 );
+                if p["tile"].is_null() {
+                    // A whole film has no alignment marks (docs/sheets.md).
+                    assert!(p["tile_marks"].as_array().unwrap().is_empty());
+                }
                 let text = caption_text(film, p, rules.copies);
                 // The caption's box errs on the large side (half a pen all round), so whether
                 // the caption stays printable is checked on the pixels below.
@@ -166,13 +195,14 @@ fn check_sheets(out: &Path, m: &Value, rules: &SheetRules) -> usize {
                         );
                     }
                 }
-                rects.push((film["key"].as_str().unwrap().to_string(), rect));
+                rects.push((film["key"].as_str().unwrap().to_string(), reserved));
                 captions.push((text, cap));
                 pieces_seen += 1;
             }
         }
-        // docs/sheets.md "Nesting": any two placements are at least gap_mm apart along x or
-        // y, so they never overlap; no caption overlaps another piece or caption.
+        // docs/sheets.md "Nesting": any two placements (with their mark bands) are at least
+        // gap_mm apart along x or y, so they never overlap; no caption overlaps another piece
+        // or caption.
         for i in 0..rects.len() {
             for j in i + 1..rects.len() {
                 let (a, b) = (&rects[i].1, &rects[j].1);
@@ -197,7 +227,8 @@ fn check_sheets(out: &Path, m: &Value, rules: &SheetRules) -> usize {
             }
         }
         // From the pixels: nothing is printed in the unprintable margins, and every black
-        // pixel belongs to a piece or a caption.
+        // pixel belongs to a piece (with its mark bands, if tiled) or a caption. A whole film
+        // has no bands, so an untiled sheet gains no black pixel from the marks.
         let tol = 0.5 / s;
         sheet.for_each_black(|x, y| {
             let (cx, cy) = ((x as f64 + 0.5) / s, (sheet.height as f64 - y as f64 - 0.5) / s);
@@ -379,6 +410,14 @@ fn long_board_tiles_cover_the_film_with_the_configured_overlap() {
     let out = dir.path().join("out");
     let m = manifest(&out);
     check_sheets(&out, &m, &default_rules(300.0));
+    // One row of tiles: each join has 2 ends in 2 bands (above and below the strip).
+    let joins: usize = m["films"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["placements"].as_array().unwrap().len() - 1)
+        .sum();
+    assert_eq!(check_tile_marks(&out, &m, 300.0), joins * 4);
     let dpi = 300.0;
     let s = dpi / MM_PER_INCH;
     let overlap_mm = 10.0; // default tile_overlap_mm (docs/sheets.md)
@@ -386,6 +425,9 @@ fn long_board_tiles_cover_the_film_with_the_configured_overlap() {
         .map(|_| None)
         .collect();
     for film in m["films"].as_array().unwrap() {
+        // Black pixels compared in all the film's overlap strips: a strip may be blank where
+        // the board has no copper, but not all of them.
+        let mut compared_black = 0u64;
         let key = film["key"].as_str().unwrap();
         let length = f(&film["size_mm"][0]);
         // The corpus README: the board is 970 mm long, far longer than any sheet.
@@ -475,10 +517,7 @@ fn long_board_tiles_cover_the_film_with_the_configured_overlap() {
                     }
                 }
             }
-            assert!(
-                same_black > 0,
-                "{key}: the overlap strip is blank, nothing compared"
-            );
+            compared_black += same_black;
             assert_eq!(
                 differ,
                 0,
@@ -487,6 +526,10 @@ fn long_board_tiles_cover_the_film_with_the_configured_overlap() {
                 k + 2
             );
         }
+        assert!(
+            compared_black > 0,
+            "{key}: the overlap strips are blank, nothing compared"
+        );
     }
 }
 
@@ -589,4 +632,297 @@ fn pdf_page_prints_the_films_at_actual_size() {
         }
     }
     assert_eq!(found, 12);
+}
+
+/// How a tile mark looks (docs/sheets.md "Tile alignment marks"; umbra's own design, no
+/// outside source): a tick across its band, 1 mm either side of the band's centre line, with
+/// an arm along the band pointing into the overlap strip, from the mark's point.
+const MARK_HALF_TICK_MM: f64 = 1.0;
+const MARK_CLEAR_MM: f64 = 0.5;
+
+/// Where a tile mark is drawn, found from the pixels near `predicted` (sheet px): the centre
+/// of the tick (across the band) and of the arm (along it), as sheet px coordinates.
+fn detect_mark(
+    sheet: &Sheet,
+    predicted: (f64, f64),
+    across_x: bool,
+    dir: f64,
+    s: f64,
+) -> (f64, f64) {
+    // In band-aligned coordinates: `a` along the band, `c` across it.
+    let (pa, pc) = if across_x {
+        (predicted.1, predicted.0)
+    } else {
+        (predicted.0, predicted.1)
+    };
+    let black = |a: i64, c: i64| {
+        if across_x {
+            sheet.black(c, a)
+        } else {
+            sheet.black(a, c)
+        }
+    };
+    let centre = |counts: &[(i64, u64)]| -> f64 {
+        let most = counts.iter().map(|c| c.1).max().unwrap_or(0);
+        assert!(most > 0, "no mark near {predicted:?}");
+        let on: Vec<f64> = counts
+            .iter()
+            .filter(|c| c.1 * 2 >= most)
+            .map(|c| c.0 as f64 + 0.5)
+            .collect();
+        on.iter().sum::<f64>() / on.len() as f64
+    };
+    // The tick: the line across the band with the most ink, within 1 mm along.
+    let half_c = ((MARK_HALF_TICK_MM - 0.1) * s) as i64;
+    let ticks: Vec<(i64, u64)> = ((pa - s) as i64..=(pa + s) as i64)
+        .map(|a| {
+            let n = (pc as i64 - half_c..=pc as i64 + half_c)
+                .filter(|&c| black(a, c))
+                .count();
+            (a, n as u64)
+        })
+        .collect();
+    // The arm: the line along the band with the most ink on the arm's side of the tick.
+    let arm_span = if dir > 0.0 {
+        (pa + 0.3 * s) as i64..=(pa + s) as i64
+    } else {
+        (pa - s) as i64..=(pa - 0.3 * s) as i64
+    };
+    let arms: Vec<(i64, u64)> = ((pc - 0.5 * s) as i64..=(pc + 0.5 * s) as i64)
+        .map(|c| {
+            let n = arm_span.clone().filter(|&a| black(a, c)).count();
+            (c, n as u64)
+        })
+        .collect();
+    let (a, c) = (centre(&ticks), centre(&arms));
+    if across_x {
+        (c, a)
+    } else {
+        (a, c)
+    }
+}
+
+/// Checks the alignment marks of every tile against the pixels, and that the two tiles of
+/// every join carry them at the same film coordinates. Returns the number of mark pairs.
+///
+/// Film pixel → sheet pixel for a piece is the difference of its placement's board → sheet
+/// transform and the film's board → film transform (both in the manifest); a film-local mm
+/// point (u, v) is film pixel (u·dpi/25.4, height_px − v·dpi/25.4) (1 in = 25.4 mm, y down
+/// in pixel rows: PNG spec §4.1 image layout, top row first).
+fn check_tile_marks(out: &Path, m: &Value, dpi: f64) -> usize {
+    use std::collections::BTreeMap;
+    let s = dpi / MM_PER_INCH;
+    let mut sheets: BTreeMap<usize, Sheet> = BTreeMap::new();
+    // (film, copy, tile pair, edge, end) → the mark's detected film pixel on each tile.
+    type Key = (String, u64, [u64; 4], String, String);
+    let mut found: BTreeMap<Key, Vec<(f64, f64)>> = BTreeMap::new();
+    for film in m["films"].as_array().unwrap() {
+        let key = film["key"].as_str().unwrap();
+        let fa = Affine::of(&film["board_to_film_px"]);
+        let fh = f(&film["size_px"][1]);
+        for p in film["placements"].as_array().unwrap() {
+            let Some(t) = p["tile"].as_array() else {
+                continue;
+            };
+            let (row, col) = (t[0].as_u64().unwrap() - 1, t[1].as_u64().unwrap() - 1);
+            let number = p["sheet"].as_u64().unwrap() as usize;
+            let sheet = sheets.entry(number).or_insert_with(|| {
+                Sheet::load(&out.join(m["sheets"][number - 1]["png"].as_str().unwrap()))
+            });
+            let sheet_h_mm = sheet.height as f64 / s;
+            let a = Affine::of(&p["board_to_sheet_px"]);
+            let off = (a.c - fa.c, a.f - fa.f);
+            let block = rect_of(p);
+            let marks = p["tile_marks"].as_array().unwrap();
+            // Every neighbour gets both ends of its strip in both bands across the strip.
+            let neighbours = [
+                (row > 0, [row - row.min(1), col]),
+                (row + 1 < t[2].as_u64().unwrap(), [row + 1, col]),
+                (col > 0, [row, col - col.min(1)]),
+                (col + 1 < t[3].as_u64().unwrap(), [row, col + 1]),
+            ];
+            let expected: usize = neighbours.iter().filter(|n| n.0).count() * 4;
+            assert_eq!(marks.len(), expected, "{key} tile {t:?}: marks {marks:?}");
+            for mk in marks {
+                let (u, v) = (f(&mk["at"]["x"]), f(&mk["at"]["y"]));
+                let edge = mk["edge"].as_str().unwrap().to_string();
+                let end = mk["end"].as_str().unwrap().to_string();
+                let nb = [
+                    mk["neighbour"][0].as_u64().unwrap(),
+                    mk["neighbour"][1].as_u64().unwrap(),
+                ];
+                assert!(
+                    neighbours.iter().any(|n| n.0 && n.1 == nb),
+                    "{key}: mark for {nb:?}"
+                );
+                let predicted = (u * s + off.0, fh - v * s + off.1);
+                let across_x = edge == "left" || edge == "right";
+                // The arm points into the strip: +film coordinate at its start. Film y is up,
+                // pixel rows down.
+                let dir = if end == "start" { 1.0 } else { -1.0 };
+                let dir = if across_x { -dir } else { dir };
+                let got = detect_mark(sheet, predicted, across_x, dir, s);
+                assert!(
+                    (got.0 - predicted.0).abs() <= 1.0 && (got.1 - predicted.1).abs() <= 1.0,
+                    "{key} tile {t:?}: {edge} {end} mark drawn at {got:?}, manifest says {predicted:?}"
+                );
+                // The mark lies in its band, outside the film block: its point is at least
+                // the tick's half length and the clear space away from the block's edge.
+                let (x_mm, y_mm) = (got.0 / s, sheet_h_mm - got.1 / s);
+                let away = match edge.as_str() {
+                    "top" => y_mm - block[3],
+                    "bottom" => block[1] - y_mm,
+                    "left" => block[0] - x_mm,
+                    _ => x_mm - block[2],
+                };
+                assert!(
+                    away >= MARK_HALF_TICK_MM + MARK_CLEAR_MM - 1.0 / s,
+                    "{key} tile {t:?}: {edge} mark {away} mm from the film block"
+                );
+                let pair = if (row, col) < (nb[0], nb[1]) {
+                    [row, col, nb[0], nb[1]]
+                } else {
+                    [nb[0], nb[1], row, col]
+                };
+                let film_px = (got.0 - off.0, got.1 - off.1);
+                found
+                    .entry((
+                        key.to_string(),
+                        p["copy"].as_u64().unwrap(),
+                        pair,
+                        edge,
+                        end,
+                    ))
+                    .or_default()
+                    .push(film_px);
+            }
+        }
+    }
+    // Laid over each other in register, the two tiles' marks coincide: the same film pixel
+    // within one pixel.
+    for (k, at) in &found {
+        assert_eq!(
+            at.len(),
+            2,
+            "{k:?}: the mark is on {} tiles, not 2",
+            at.len()
+        );
+        assert!(
+            (at[0].0 - at[1].0).abs() <= 1.0 && (at[0].1 - at[1].1).abs() <= 1.0,
+            "{k:?}: the two tiles' marks are at film pixels {:?} and {:?}",
+            at[0],
+            at[1]
+        );
+    }
+    found.len()
+}
+
+#[test]
+fn tiles_in_a_grid_show_the_whole_film_and_share_their_marks() {
+    // The demo board's films (about 70 × 73 mm) on a 78 × 84 mm sheet: printable 68 × 70.5
+    // mm less the caption strip (3.5 mm), so each film is cut into 2 × 2 tiles. The large
+    // overlap keeps each tile wider than its caption.
+    let overlap_mm = 50.0;
+    let dir = tempfile::tempdir().unwrap();
+    let m = demo_run(
+        dir.path(),
+        &format!(
+            "[printer]\ndpi = 300\n\n[sheet]\nsize = \"78x84mm\"\norientation = \"portrait\"\ntile_overlap_mm = {overlap_mm}\n"
+        ),
+    );
+    let out = dir.path().join("out");
+    let pieces = check_sheets(&out, &m, &default_rules(300.0));
+    assert_eq!(pieces, 16, "4 films of 2 × 2 tiles");
+    // 4 joins per film, each with 2 ends in 2 bands: 16 pairs per film.
+    assert_eq!(check_tile_marks(&out, &m, 300.0), 4 * 16);
+    // The same films whole on A4: the reference for every tile's pixels.
+    let ref_dir = tempfile::tempdir().unwrap();
+    let whole = demo_run(ref_dir.path(), "[printer]\ndpi = 300\n");
+    let ref_out = ref_dir.path().join("out");
+    let s = 300.0 / MM_PER_INCH;
+    let ref_sheet = Sheet::load(&ref_out.join("sheet-01.png"));
+    for film in m["films"].as_array().unwrap() {
+        let key = film["key"].as_str().unwrap();
+        let reference = films_support::film(&whole, key);
+        let rp = &reference["placements"][0];
+        assert!(
+            rp["tile"].is_null() && rp["sheet"] == 1,
+            "{key} is whole on A4"
+        );
+        let fa = Affine::of(&film["board_to_film_px"]);
+        let ra = Affine::of(&rp["board_to_sheet_px"]);
+        let (fw, fh) = (
+            film["size_px"][0].as_u64().unwrap() as i64,
+            film["size_px"][1].as_u64().unwrap() as i64,
+        );
+        let ref_off = ((ra.c - fa.c).round() as i64, (ra.f - fa.f).round() as i64);
+        let mut covered = vec![false; (fw * fh) as usize];
+        let tiles = film["placements"].as_array().unwrap();
+        let mut spans = Vec::new();
+        for p in tiles {
+            let n = p["sheet"].as_u64().unwrap() as usize;
+            let sheet = Sheet::load(&out.join(m["sheets"][n - 1]["png"].as_str().unwrap()));
+            let a = Affine::of(&p["board_to_sheet_px"]);
+            let off = ((a.c - fa.c).round() as i64, (a.f - fa.f).round() as i64);
+            // The block in sheet pixels, one pixel in from the rounded rect.
+            let r = rect_of(p);
+            let sheet_h = sheet.height as f64;
+            let (x0, x1) = ((r[0] * s).round() as i64 + 1, (r[2] * s).round() as i64 - 1);
+            let (y0, y1) = (
+                (sheet_h - r[3] * s).round() as i64 + 1,
+                (sheet_h - r[1] * s).round() as i64 - 1,
+            );
+            spans.push(((x0 - off.0, x1 - off.0), (y0 - off.1, y1 - off.1)));
+            let mut differ = 0u64;
+            for y in y0..y1 {
+                for x in x0..x1 {
+                    let (u, v) = (x - off.0, y - off.1);
+                    assert!(
+                        u >= 0 && v >= 0 && u < fw && v < fh,
+                        "{key}: block beyond the film"
+                    );
+                    covered[(v * fw + u) as usize] = true;
+                    if sheet.black(x, y) != ref_sheet.black(u + ref_off.0, v + ref_off.1) {
+                        differ += 1;
+                    }
+                }
+            }
+            // Nothing but the film inside a tile's block: no mark, no caption.
+            assert_eq!(
+                differ, 0,
+                "{key} tile {}: block differs from the whole film",
+                p["tile"]
+            );
+        }
+        // Together the tiles show every film pixel (but the outermost two, which the one
+        // pixel left out above and the rounding of the rect to pixels may leave out).
+        let missing: Vec<(i64, i64)> = (2..fh - 2)
+            .flat_map(|v| (2..fw - 2).map(move |u| (u, v)))
+            .filter(|&(u, v)| !covered[(v * fw + u) as usize])
+            .collect();
+        assert!(
+            missing.is_empty(),
+            "{key}: {} film pixels on no tile, first {:?}, last {:?}",
+            missing.len(),
+            missing.first(),
+            missing.last()
+        );
+        // Neighbours overlap by the configured overlap (docs/sheets.md "Tiling"), within a
+        // pixel and the one pixel left out at each block edge.
+        let mut xs: Vec<_> = spans.iter().map(|s| s.0).collect();
+        xs.sort_unstable();
+        xs.dedup();
+        let mut ys: Vec<_> = spans.iter().map(|s| s.1).collect();
+        ys.sort_unstable();
+        ys.dedup();
+        for spans_1d in [xs, ys] {
+            assert_eq!(spans_1d.len(), 2, "{key}: {spans_1d:?}");
+            let ov = (spans_1d[0].1 + 1 - (spans_1d[1].0 - 1)) as f64;
+            assert!(
+                (ov - overlap_mm * s).abs() <= 1.0,
+                "{key}: overlap {ov} px, not {} px",
+                overlap_mm * s
+            );
+        }
+    }
 }

@@ -710,6 +710,13 @@ fn detect_mark(
 /// point (u, v) is film pixel (u·dpi/25.4, height_px − v·dpi/25.4) (1 in = 25.4 mm, y down
 /// in pixel rows: PNG spec §4.1 image layout, top row first).
 fn check_tile_marks(out: &Path, m: &Value, dpi: f64) -> usize {
+    check_tile_marks_on(m, dpi, |number| {
+        Sheet::load(&out.join(m["sheets"][number - 1]["png"].as_str().unwrap()))
+    })
+}
+
+/// [`check_tile_marks`] on the sheets `load` gives by 1-based number.
+fn check_tile_marks_on(m: &Value, dpi: f64, load: impl Fn(usize) -> Sheet) -> usize {
     use std::collections::BTreeMap;
     let s = dpi / MM_PER_INCH;
     let mut sheets: BTreeMap<usize, Sheet> = BTreeMap::new();
@@ -726,10 +733,8 @@ fn check_tile_marks(out: &Path, m: &Value, dpi: f64) -> usize {
             };
             let (row, col) = (t[0].as_u64().unwrap() - 1, t[1].as_u64().unwrap() - 1);
             let number = p["sheet"].as_u64().unwrap() as usize;
-            let sheet = sheets.entry(number).or_insert_with(|| {
-                Sheet::load(&out.join(m["sheets"][number - 1]["png"].as_str().unwrap()))
-            });
-            let sheet_h_mm = sheet.height as f64 / s;
+            let sheet = sheets.entry(number).or_insert_with(|| load(number));
+            let sheet_h_mm = f(&m["sheets"][number - 1]["size_mm"][1]);
             let a = Affine::of(&p["board_to_sheet_px"]);
             let off = (a.c - fa.c, a.f - fa.f);
             let block = rect_of(p);
@@ -925,4 +930,58 @@ fn tiles_in_a_grid_show_the_whole_film_and_share_their_marks() {
             );
         }
     }
+}
+
+#[test]
+fn vector_pages_carry_the_same_tile_marks() {
+    // The grid of the test above with --vector: poppler's pdftoppm (Debian poppler-utils)
+    // rasterizes films-vector.pdf at the sheets' resolution, 1 px = 1/300 in (ISO 32000-1
+    // §8.3.2.1), and every mark must be found where the manifest puts it on the raster sheet.
+    if !have_tool("pdftoppm") {
+        assert_ne!(
+            std::env::var("CI").as_deref(),
+            Ok("true"),
+            "pdftoppm is required under CI"
+        );
+        eprintln!("skipping: pdftoppm (poppler-utils) is not installed");
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    write_profile(
+        dir.path(),
+        "p.toml",
+        "[printer]\ndpi = 300\n\n[sheet]\nsize = \"78x84mm\"\norientation = \"portrait\"\ntile_overlap_mm = 50\n",
+    );
+    films_ok(
+        dir.path(),
+        &[
+            demo_dir().to_str().unwrap(),
+            "-o",
+            "out",
+            "--profile",
+            "p.toml",
+            "--vector",
+        ],
+    );
+    let out = dir.path().join("out");
+    let m = manifest(&out);
+    let st = std::process::Command::new("pdftoppm")
+        .args(["-r", "300", "-gray"])
+        .arg(out.join("films-vector.pdf"))
+        .arg(dir.path().join("page"))
+        .status()
+        .unwrap();
+    assert!(st.success());
+    let mut pages = names_starting(dir.path(), "page");
+    pages.sort(); // page-01, page-02, …: zero-padded to one width
+    assert_eq!(
+        pages.len(),
+        m["sheets"].as_array().unwrap().len(),
+        "{pages:?}"
+    );
+    let pairs = check_tile_marks_on(&m, 300.0, |number| {
+        let (w, h, gray) = read_pgm(&std::fs::read(dir.path().join(&pages[number - 1])).unwrap());
+        Sheet::from_gray(w, h, &gray)
+    });
+    assert_eq!(pairs, 4 * 16);
 }

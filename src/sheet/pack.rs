@@ -496,7 +496,7 @@ fn book(shelves: &mut Vec<Shelf>, piece: &Piece, room: Room) -> Option<(usize, f
     }
     shelves.push(Shelf {
         top,
-        height: height,
+        height,
         used_width: width,
     });
     Some((shelves.len() - 1, 0.0))

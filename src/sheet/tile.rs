@@ -241,7 +241,10 @@ mod tests {
         // The top-left tile's marks shared with the top-right one equal that tile's own.
         let shared = |a: &[TileMark], b: &[TileMark], a_rc: [u32; 2]| {
             let mut x: Vec<_> = a.iter().filter(|m| m.neighbour != a_rc).collect();
-            x.retain(|m| b.iter().any(|o| o.at == m.at && o.edge == m.edge && o.end == m.end));
+            x.retain(|m| {
+                b.iter()
+                    .any(|o| o.at == m.at && o.edge == m.edge && o.end == m.end)
+            });
             x.len()
         };
         assert_eq!(shared(&tl, &tr, [1, 0]), 4);

@@ -707,8 +707,9 @@ fn detect_mark(
 ///
 /// Film pixel → sheet pixel for a piece is the difference of its placement's board → sheet
 /// transform and the film's board → film transform (both in the manifest); a film-local mm
-/// point (u, v) is film pixel (u·dpi/25.4, height_px − v·dpi/25.4) (1 in = 25.4 mm, y down
-/// in pixel rows: PNG spec §4.1 image layout, top row first).
+/// point (u, v) is film pixel (u·dpi/25.4, height_px − v·dpi/25.4): 1 in = 25.4 mm by
+/// definition, and pixel rows count down from the top row as PNG scanlines do (from memory
+/// of the PNG spec) while film-local y is up (docs/sheets.md).
 fn check_tile_marks(out: &Path, m: &Value, dpi: f64) -> usize {
     check_tile_marks_on(m, dpi, |number| {
         Sheet::load(&out.join(m["sheets"][number - 1]["png"].as_str().unwrap()))

@@ -253,10 +253,17 @@ fn layout_oriented(
         if (cols > 1.0 && spec.tile_overlap_mm >= room_w)
             || (rows > 1.0 && spec.tile_overlap_mm >= room_h)
         {
+            let room = if (room_w, room_h) == (pw, ph) {
+                format!("the printable area of {sheet_name} ({pw} × {ph} mm)")
+            } else {
+                format!(
+                    "the room for one tile on {sheet_name} ({room_w} × {room_h} mm: the \
+                     printable {pw} × {ph} mm less {band_mm} mm bands for alignment marks)"
+                )
+            };
             return Err(LayoutError::BadSpec(format!(
                 "Film {} ({} × {} mm) must be tiled, but the tile overlap of {} mm is not \
-                 smaller than the room for one tile on {sheet_name} ({room_w} × {room_h} mm \
-                 of {pw} × {ph} mm printable, after {band_mm} mm bands for alignment marks).",
+                 smaller than {room}.",
                 f.id, f.width_mm, f.height_mm, spec.tile_overlap_mm
             )));
         }

@@ -15,18 +15,41 @@ const CAPTION_MM: f64 = 3.5;
 const CAPTION_CAP_MM: f64 = 1.6;
 const CAPTION_PEN_MM: f64 = 0.16;
 
+/// Width of the band beside a tile's film block that holds its alignment marks, mm
+/// (sheet::Tile::bands says which edges get one).
+pub const TILE_BAND_MM: f64 = 3.0;
+/// Pen of the alignment marks, mm: the caption's, thin but well above a 300 dpi pixel.
+const MARK_PEN_MM: f64 = CAPTION_PEN_MM;
+/// Clear space between a mark and the film block, mm, so no mark touches the artwork.
+const MARK_CLEAR_MM: f64 = 0.5;
+/// Longest arm of a mark (along the overlap strip), mm.
+const MARK_ARM_MM: f64 = 2.0;
+/// Cap height of the label naming the join between two marks, mm.
+const MARK_LABEL_CAP_MM: f64 = 1.0;
+
+/// A film's size in mm, as laid out: its bitmap at the film's resolution.
+fn film_size_mm(f: &MadeFilm) -> (f64, f64) {
+    (
+        f.rendered.bitmap.width() as f64 * 25.4 / f.recipe.dpi_x,
+        f.rendered.bitmap.height() as f64 * 25.4 / f.recipe.dpi_y,
+    )
+}
+
 /// Lays the films out on sheets. Copper films form one group and mask films another, so
 /// each pair is printed in one pass and shares the printer's scale error.
 pub fn lay_out(films: &[MadeFilm], profile: &Profile) -> Result<Layout, FilmsError> {
     let requests: Vec<FilmRequest> = films
         .iter()
         .enumerate()
-        .map(|(i, f)| FilmRequest {
-            id: i,
-            width_mm: f.rendered.bitmap.width() as f64 * 25.4 / f.recipe.dpi_x,
-            height_mm: f.rendered.bitmap.height() as f64 * 25.4 / f.recipe.dpi_y,
-            copies: profile.films.copies,
-            group: Some(function_order(f.id.function)),
+        .map(|(i, f)| {
+            let (width_mm, height_mm) = film_size_mm(f);
+            FilmRequest {
+                id: i,
+                width_mm,
+                height_mm,
+                copies: profile.films.copies,
+                group: Some(function_order(f.id.function)),
+            }
         })
         .collect();
     let mut spec = profile.sheet.clone();
@@ -46,7 +69,8 @@ pub fn lay_out(films: &[MadeFilm], profile: &Profile) -> Result<Layout, FilmsErr
             s.orientation = Orientation::Portrait;
             s.margins.top_mm += CAPTION_MM;
         }
-        sheet::layout(&requests, &s)
+        // Tiles are packed with their mark bands (TILE_BAND_MM), so tile and marks fit.
+        sheet::layout_with_mark_bands(&requests, &s, TILE_BAND_MM)
     };
     let chosen = match spec.orientation {
         Orientation::Portrait => oriented(false),
@@ -183,7 +207,8 @@ pub fn piece_pixels(
     (left, top, block)
 }
 
-/// The caption above a piece, as strokes in sheet mm (origin lower-left, y up).
+/// The caption above a piece (above its top mark band, if any), as strokes in sheet mm
+/// (origin lower-left, y up).
 pub fn caption_shapes(
     film: &MadeFilm,
     p: &sheet::Placement,
@@ -194,12 +219,121 @@ pub fn caption_shapes(
         &text,
         // Half a pen in from the piece's left edge: a round pen centred on the piece's
         // edge would reach into the unprintable margin when the piece touches it.
-        Point::new(p.x_mm + CAPTION_PEN_MM / 2.0, p.y_mm + p.height_mm + 1.0),
+        Point::new(
+            p.x_mm + CAPTION_PEN_MM / 2.0,
+            p.y_mm + p.height_mm + p.bands(TILE_BAND_MM).top + 1.0,
+        ),
         CAPTION_CAP_MM,
         CAPTION_PEN_MM,
         false,
         0.0,
     )
+}
+
+/// The alignment marks of a tile in film-local mm (none for a whole film). The tiles are
+/// cut again exactly as the layout cut them, so both neighbours compute the same numbers.
+pub fn tile_marks_of(
+    film: &MadeFilm,
+    p: &sheet::Placement,
+    profile: &Profile,
+) -> Vec<sheet::TileMark> {
+    let Some(tile) = &p.tile else {
+        return Vec::new();
+    };
+    let (w, h) = film_size_mm(film);
+    let all = sheet::split_into_tiles(w, h, tile.cols, tile.rows, profile.sheet.tile_overlap_mm);
+    sheet::tile_marks(&all, tile, TILE_BAND_MM, MARK_PEN_MM / 2.0)
+}
+
+/// The label between the two marks of one join: `C1|2` between tile columns 1 and 2, `R1|2`
+/// between rows 1 and 2 (1-based, as in the captions).
+fn join_label(tile: &sheet::Tile, m: &sheet::TileMark) -> String {
+    let (kind, a, b) = match m.edge {
+        sheet::Edge::Top | sheet::Edge::Bottom => ('C', tile.col, m.neighbour[1]),
+        sheet::Edge::Left | sheet::Edge::Right => ('R', tile.row, m.neighbour[0]),
+    };
+    format!("{kind}{}|{}", a.min(b) + 1, a.max(b) + 1)
+}
+
+/// A tile's alignment marks as strokes in sheet mm (origin lower-left, y up), placed on the
+/// piece's pixel grid as [`piece_pixels`] places the film, so a mark's film coordinate lands on
+/// the same film pixel on every tile. Each mark is a tick across its band with an arm along
+/// the band pointing into the overlap strip (`├` at the strip's start, `┤` at its end, so the
+/// two ends cannot be confused). Each band of a join also gets a label naming the join in the
+/// middle of the strip, between the arms, when it fits. Nothing reaches into the film block.
+pub fn tile_mark_shapes(
+    film: &MadeFilm,
+    p: &sheet::Placement,
+    profile: &Profile,
+    sheet_h_px: usize,
+) -> Vec<crate::image::Shape> {
+    let Some(tile) = &p.tile else {
+        return Vec::new();
+    };
+    let (dpi_x, dpi_y) = (profile.dpi_x(), profile.dpi_y());
+    let fb = &film.rendered.bitmap;
+    let (left, top, (sx, sy, _, _)) =
+        piece_pixels(p, (fb.width(), fb.height()), (dpi_x, dpi_y), sheet_h_px);
+    // Film-local mm → sheet mm, through the pixel offsets of the piece.
+    let ox = (left - sx as i64) as f64 * 25.4 / dpi_x;
+    let oy = (sheet_h_px as i64 - (top - sy as i64 + fb.height() as i64)) as f64 * 25.4 / dpi_y;
+    let at = |x: f64, y: f64| Point::new(ox + x, oy + y);
+    let stroke = |a: Point, b: Point| crate::image::Shape::Stroke {
+        start: a,
+        end: b,
+        arc: None,
+        width: MARK_PEN_MM,
+    };
+    let half_tick = TILE_BAND_MM / 2.0 - MARK_CLEAR_MM;
+    let mut shapes = Vec::new();
+    for m in tile_marks_of(film, p, profile) {
+        let (s0, s1) = m.overlap;
+        let inner = s1 - s0 - MARK_PEN_MM;
+        let arm = MARK_ARM_MM.min(inner / 2.0 - MARK_PEN_MM).max(0.0);
+        let dir = match m.end {
+            sheet::OverlapEnd::Start => 1.0,
+            sheet::OverlapEnd::End => -1.0,
+        };
+        let c = m.at;
+        let across_x = matches!(m.edge, sheet::Edge::Left | sheet::Edge::Right);
+        if across_x {
+            // Band left or right of the block: the tick runs along x, the arm along y.
+            shapes.push(stroke(at(c.x - half_tick, c.y), at(c.x + half_tick, c.y)));
+            if arm > 0.0 {
+                shapes.push(stroke(at(c.x, c.y), at(c.x, c.y + dir * arm)));
+            }
+        } else {
+            shapes.push(stroke(at(c.x, c.y - half_tick), at(c.x, c.y + half_tick)));
+            if arm > 0.0 {
+                shapes.push(stroke(at(c.x, c.y), at(c.x + dir * arm, c.y)));
+            }
+        }
+        if m.end != sheet::OverlapEnd::Start {
+            continue;
+        }
+        // The label, centred in the strip between the arms when it fits.
+        let text = join_label(tile, &m);
+        let width = crate::film::font::text_width_mm(&text, MARK_LABEL_CAP_MM);
+        let room = inner - 2.0 * arm - 4.0 * MARK_PEN_MM;
+        if width > room {
+            continue;
+        }
+        let mid = (s0 + s1) / 2.0;
+        let (origin, turn) = if across_x {
+            (at(c.x + MARK_LABEL_CAP_MM / 2.0, mid - width / 2.0), 90.0)
+        } else {
+            (at(mid - width / 2.0, c.y - MARK_LABEL_CAP_MM / 2.0), 0.0)
+        };
+        shapes.extend(crate::film::font::text_shapes(
+            &text,
+            origin,
+            MARK_LABEL_CAP_MM,
+            MARK_PEN_MM,
+            false,
+            turn,
+        ));
+    }
+    shapes
 }
 
 /// A sheet bitmap with its films, and the reports of the pieces on it.
@@ -236,6 +370,7 @@ pub fn compose_sheet(
             ..a
         };
         captions.extend(caption_shapes(film, p, profile.films.copies));
+        captions.extend(tile_mark_shapes(film, p, profile, h));
         pieces.push((
             p.film,
             PlacementReport {
@@ -250,6 +385,7 @@ pub fn compose_sheet(
                 width_mm: p.width_mm,
                 height_mm: p.height_mm,
                 board_to_sheet_px,
+                tile_marks: tile_marks_of(film, p, profile),
             },
         ));
     }

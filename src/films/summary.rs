@@ -45,6 +45,8 @@ pub struct PlacementReport {
     pub height_mm: f64,
     /// Board mm → sheet pixels (top-left origin) for this piece.
     pub board_to_sheet_px: Affine,
+    /// The tile's alignment marks, film-local mm (empty for a whole film).
+    pub tile_marks: Vec<crate::sheet::TileMark>,
 }
 
 /// One output sheet.

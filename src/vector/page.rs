@@ -141,7 +141,7 @@ pub fn vector_page(
             tolerance_mm,
         };
         let rings: Vec<_> = captions.iter().flat_map(|s| fl.rings(s)).collect();
-        let region = ops::simplify(&rings);
+        let region = ops::simplify(&rings, fl.grid());
         let matrix = [
             PT_PER_MM,
             0.0,

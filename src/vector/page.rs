@@ -180,7 +180,7 @@ pub fn write_vector_outputs(
     layout: &Layout,
     profile: &Profile,
 ) -> Result<Vec<String>, String> {
-    let opts = VectorOptions::default();
+    let opts = VectorOptions::from_profile(profile);
     let mut vfilms = Vec::with_capacity(films.len());
     for f in films {
         let vf = vector_film_for(board, f, frame, profile, &opts)

@@ -141,12 +141,13 @@ impl ClearIndex {
     }
 }
 
-/// The union of the items painted in order, as a cover (see the module docs). Layer-image
-/// pieces are clipped to `board_clip`.
-fn paint(items: &[Item], board_clip: Option<&Ring>, grid: ops::Grid) -> Vec<Ring> {
+/// The pieces of the items painted in order, each a cover (a Dark item minus the later
+/// Clear items; see the module docs); their union is the painted image. Layer-image pieces
+/// are clipped to `board_clip`.
+fn paint(items: &[Item], board_clip: Option<&Ring>, grid: ops::Grid) -> Vec<Vec<Ring>> {
     let index = ClearIndex::new(items);
     let clip_box = board_clip.and_then(|r| super::rings_bounds(std::iter::once(r)));
-    let pieces: Vec<Vec<Ring>> = items
+    items
         .par_iter()
         .enumerate()
         .filter(|(_, it)| it.dark)
@@ -173,8 +174,8 @@ fn paint(items: &[Item], board_clip: Option<&Ring>, grid: ops::Grid) -> Vec<Ring
             }
             rings
         })
-        .collect();
-    pieces.into_iter().flatten().collect()
+        .filter(|rings: &Vec<Ring>| !rings.is_empty())
+        .collect()
 }
 
 /// Composes one film as polygons. See the module docs for the order of operations.

@@ -116,46 +116,50 @@ pub fn simplify(rings: &[Ring], grid: Grid) -> Region {
     run(rings, &[], OverlayRule::Subject, grid)
 }
 
-/// Rings per leaf of [`union_many`]: small enough that each overlay is cheap.
+/// Pieces per leaf of [`union_many`]: small enough that each overlay is cheap.
 const UNION_LEAF: usize = 256;
 
-/// The union of many rings (non-zero winding), as [`simplify`] gives it, computed in two
-/// stages: the rings are ordered along a Z-order curve of their box centres, leaves of
-/// neighbouring rings are united in parallel, then all the leaves' results in one overlay.
-/// Each leaf sees only nearby geometry and removes most of the overlap (on the bench board
-/// 660,000 vertices become 200,000); one final overlay then costs less than merging the
-/// leaves pairwise, because on a dense board most of the copper joins into one polygon
-/// that every pairwise merge would have to process again (docs/vector.md).
-pub fn union_many(rings: Vec<Ring>, grid: Grid) -> Region {
-    let mut keyed: Vec<(u64, Ring)> = match super::rings_bounds(&rings) {
+/// The union of many pieces, each a cover (non-zero winding), as [`simplify`] gives it,
+/// computed in two stages: the pieces are ordered along a Z-order curve of their box
+/// centres, leaves of neighbouring pieces are united in parallel, then all the leaves'
+/// results in one overlay. Each leaf sees only nearby geometry and removes most of the
+/// overlap (on the bench board 660,000 vertices become 200,000); one final overlay then
+/// costs less than merging the leaves pairwise, because on a dense board most of the copper
+/// joins into one polygon that every pairwise merge would have to process again
+/// (docs/vector.md).
+///
+/// A piece's rings stay together: a hole ring alone in a leaf would be filled by the
+/// non-zero rule.
+pub fn union_many(pieces: Vec<Vec<Ring>>, grid: Grid) -> Region {
+    let all = match super::rings_bounds(pieces.iter().flatten()) {
         None => return Region::new(),
-        Some(all) => {
-            let span = (all[2] - all[0]).max(all[3] - all[1]).max(1e-9);
-            rings
-                .into_iter()
-                .filter(|r| r.len() >= 3)
-                .map(|r| {
-                    let b = super::rings_bounds(std::iter::once(&r)).unwrap_or(all);
-                    let q =
-                        |v: f64, o: f64| (((v - o) / span) * 65535.0).clamp(0.0, 65535.0) as u32;
-                    let key = morton(
-                        q((b[0] + b[2]) / 2.0, all[0]),
-                        q((b[1] + b[3]) / 2.0, all[1]),
-                    );
-                    (key, r)
-                })
-                .collect()
-        }
+        Some(all) => all,
     };
-    if keyed.len() <= UNION_LEAF {
-        let rings: Vec<Ring> = keyed.into_iter().map(|k| k.1).collect();
+    let span = (all[2] - all[0]).max(all[3] - all[1]).max(1e-9);
+    let q = |v: f64, o: f64| (((v - o) / span) * 65535.0).clamp(0.0, 65535.0) as u32;
+    let mut keyed: Vec<(u64, Vec<Ring>)> = pieces
+        .into_iter()
+        .filter_map(|p| {
+            let b = super::rings_bounds(&p)?;
+            let key = morton(
+                q((b[0] + b[2]) / 2.0, all[0]),
+                q((b[1] + b[3]) / 2.0, all[1]),
+            );
+            Some((key, p))
+        })
+        .collect();
+    keyed.sort_by_key(|k| k.0);
+    let pieces: Vec<Vec<Ring>> = keyed.into_iter().map(|k| k.1).collect();
+    if pieces.len() <= UNION_LEAF {
+        let rings: Vec<Ring> = pieces.into_iter().flatten().collect();
         return simplify(&rings, grid);
     }
-    keyed.sort_by_key(|k| k.0);
-    let rings: Vec<Ring> = keyed.into_iter().map(|k| k.1).collect();
-    let leaves: Vec<Ring> = rings
+    let leaves: Vec<Ring> = pieces
         .par_chunks(UNION_LEAF)
-        .flat_map_iter(|c| simplify(c, grid).into_iter().flatten())
+        .flat_map_iter(|c| {
+            let rings: Vec<Ring> = c.iter().flatten().cloned().collect();
+            simplify(&rings, grid).into_iter().flatten()
+        })
         .collect();
     simplify(&leaves, grid)
 }

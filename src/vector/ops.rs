@@ -8,13 +8,13 @@
 //! # The integer grid
 //! The library computes on integers: every point is snapped to a grid, and points and
 //! crossings closer than a few grid steps are merged. All operations of one film use the
-//! same [`Grid`], a power-of-two step about 1/64 of the arc tolerance with its origin at the
+//! same [`Grid`], a power-of-two step of at most 1/64 of the arc tolerance with its origin at the
 //! film's origin, so the output of one operation is already on the grid of the next and
 //! snapping never accumulates. A grid much finer than the tolerance costs a lot of time and
 //! buys nothing: flattened caps and pads of neighbouring objects meet at grazing angles,
 //! and on a picometre grid each such meeting becomes many distinct crossings (measured on
 //! the bench board: a leaf of 256 pieces took 450–600 ms on the automatic grid of about
-//! 15 pm and 25 ms on a grid of 2^-17 mm; docs/vector.md).
+//! 15 pm and 8–11 ms on the default 2^-15 mm; docs/vector.md).
 
 use super::{Region, Ring};
 use i_overlay::core::fill_rule::FillRule;
@@ -68,7 +68,7 @@ impl Grid {
         // A power of two at least the radius keeps the rectangle's centre exactly at 0.
         let r = 2f64.powi(radius.max(1.0).log2().ceil() as i32);
         let rect = FloatRect::new(-r, r, -r, r).expect("finite square about the origin");
-        FloatPointAdapter::try_with_scale_conservative(rect.clone(), self.per_mm)
+        FloatPointAdapter::try_with_scale_conservative(rect, self.per_mm)
             .unwrap_or_else(|_| FloatPointAdapter::new_conservative(rect))
     }
 }

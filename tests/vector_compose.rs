@@ -265,5 +265,9 @@ fn a_cut_out_stays_clear_when_the_union_is_split_into_leaves() {
     let vf = compose_film(&job(&image, &rc, &fr, &art), &opts());
     // Area: square minus disc, 100 − π·0.25 (arithmetic); the hole's chords lie inside the
     // true circle, so the hole may lose up to 2π·0.5·TOL (sagitta bound).
-    close(region_area(&vf.black), 100.0 - PI * 0.25, 2.0 * PI * 0.5 * TOL);
+    close(
+        region_area(&vf.black),
+        100.0 - PI * 0.25,
+        2.0 * PI * 0.5 * TOL,
+    );
 }

@@ -3,7 +3,8 @@
 //!
 //! Run with `cargo bench --bench vector`. Prints, best of a few runs, the time to compose
 //! the top copper film as polygons (flatten, booleans in order, drill marks, artwork,
-//! polarity, edge offset) without and with a 50 µm edge offset, and the vertex count.
+//! polarity, edge offset) without and with a 50 µm edge offset, the vertex count and the
+//! black area (to compare results across changes).
 //! Target: at most 1 s (docs/vector.md).
 
 use std::time::Instant;
@@ -31,16 +32,23 @@ fn main() {
             .expect("top copper");
         let mut best = f64::INFINITY;
         let mut vertices = 0;
+        let mut area = 0.0;
         for _ in 0..3 {
             let t = Instant::now();
             let vf = vector_film_for(&board, top, &frame, &profile, &VectorOptions::default())
                 .expect("vector film");
             best = best.min(t.elapsed().as_secs_f64());
             vertices = vf.black.iter().flatten().map(|r| r.len()).sum::<usize>();
+            area = umbra::vector::region_area(&vf.black);
         }
+        // The raster film of the same recipe, for comparison: black pixels × pixel area.
+        let pixel_mm2 = (25.4 / top.recipe.dpi_x) * (25.4 / top.recipe.dpi_y);
+        let raster_area = top.rendered.bitmap.count_ones() as f64 * pixel_mm2;
         println!(
-            "vector compose, top copper, edge offset {:+.1} µm: {:.3} s (best of 3), {} vertices",
-            top.recipe.edge_offset_um, best, vertices
+            "vector compose, top copper, edge offset {:+.1} µm: {:.3} s (best of 3), {} vertices, \
+             black area {:.4} mm² \
+             (raster film: {:.4} mm²)",
+            top.recipe.edge_offset_um, best, vertices, area, raster_area
         );
     }
 }

@@ -103,6 +103,10 @@ struct FilmsArgs {
     /// the edge offset applied exactly instead of in whole pixels
     #[arg(long)]
     vector: bool,
+    /// Vector films: largest distance between a true arc and its chords, µm, replacing the
+    /// profile's [device] vector_arc_tolerance_um (0 = 1/8 of a printer dot)
+    #[arg(long)]
+    arc_tolerance_um: Option<f64>,
 }
 
 #[derive(Args, Debug)]
@@ -248,6 +252,10 @@ fn films(a: FilmsArgs) -> Result<ExitCode, String> {
     if let Some(d) = &a.device {
         profile.device.kind = d.parse()?;
         profile.validate()?;
+    }
+    if let Some(t) = a.arc_tolerance_um {
+        umbra::vector::validate_arc_tolerance_um(t, "--arc-tolerance-um")?;
+        profile.device.vector_arc_tolerance_um = t;
     }
     let limits = &profile.input_limits;
     // Refuse an existing output folder before doing any work.

@@ -243,3 +243,31 @@ fn strokes_arcs_and_rings_have_their_analytic_areas() {
         2.0 * PI * 1.0 * TOL,
     );
 }
+
+#[test]
+fn a_cut_out_stays_clear_when_the_union_is_split_into_leaves() {
+    // A 10 × 10 mm pour, a clear disc of radius 0.5 cut from it near its upper right
+    // corner, then 600 small dark discs in the pour's left half: more pieces than one leaf
+    // of the union holds, and along the union's Z-order the pour's centre and the cut-out
+    // lie some 300 discs apart.
+    let mut image = LayerImage::default();
+    image.push(Polarity::Dark, square(Point::new(5.0, 5.0), 10.0));
+    image.push(Polarity::Clear, disc(Point::new(8.5, 8.5), 0.5));
+    for i in 0..20 {
+        for j in 0..30 {
+            let c = Point::new(0.5 + 0.2 * i as f64, 0.5 + 0.3 * j as f64);
+            image.push(Polarity::Dark, disc(c, 0.05));
+        }
+    }
+    let art = bare_artwork();
+    let fr = frame(bounds(0.0, 0.0, 10.0, 10.0), &art);
+    let rc = recipe(1200.0, true, true, 0.0);
+    let vf = compose_film(&job(&image, &rc, &fr, &art), &opts());
+    // Area: square minus disc, 100 − π·0.25 (arithmetic); the hole's chords lie inside the
+    // true circle, so the hole may lose up to 2π·0.5·TOL (sagitta bound).
+    close(
+        region_area(&vf.black),
+        100.0 - PI * 0.25,
+        2.0 * PI * 0.5 * TOL,
+    );
+}

@@ -242,6 +242,9 @@ impl Default for FilmServiceSection {
 #[serde(default, deny_unknown_fields)]
 pub struct DeviceSection {
     pub kind: DeviceKind,
+    /// Vector films (`umbra films --vector`): largest distance between a true arc and its
+    /// chords, µm; 0 = 1/8 of the device dot (`vector::VectorOptions`).
+    pub vector_arc_tolerance_um: f64,
     /// The screen, needed when `kind = "lcd"`.
     pub lcd: Option<LcdScreen>,
     pub film_service: FilmServiceSection,
@@ -250,6 +253,10 @@ pub struct DeviceSection {
 impl DeviceSection {
     /// Checks value ranges (called by `Profile::validate`).
     pub fn validate(&self) -> Result<(), String> {
+        crate::vector::validate_arc_tolerance_um(
+            self.vector_arc_tolerance_um,
+            "device.vector_arc_tolerance_um",
+        )?;
         if let Some(s) = &self.lcd {
             s.validate()?;
         }

@@ -141,12 +141,13 @@ impl ClearIndex {
     }
 }
 
-/// The union of the items painted in order, as a cover (see the module docs). Layer-image
-/// pieces are clipped to `board_clip`.
-fn paint(items: &[Item], board_clip: Option<&Ring>) -> Vec<Ring> {
+/// The pieces of the items painted in order, each a cover (a Dark item minus the later
+/// Clear items; see the module docs); their union is the painted image. Layer-image pieces
+/// are clipped to `board_clip`.
+fn paint(items: &[Item], board_clip: Option<&Ring>, grid: ops::Grid) -> Vec<Vec<Ring>> {
     let index = ClearIndex::new(items);
     let clip_box = board_clip.and_then(|r| super::rings_bounds(std::iter::once(r)));
-    let pieces: Vec<Vec<Ring>> = items
+    items
         .par_iter()
         .enumerate()
         .filter(|(_, it)| it.dark)
@@ -159,12 +160,13 @@ fn paint(items: &[Item], board_clip: Option<&Ring>) -> Vec<Ring> {
                     .iter()
                     .flat_map(|&j| items[j as usize].rings.iter().cloned())
                     .collect();
-                ops::rings_of(ops::difference(&it.rings, &clip))
+                ops::rings_of(ops::difference(&it.rings, &clip, grid))
             };
             if it.clip_to_board {
                 match (board_clip, clip_box) {
                     (Some(r), Some(b)) if !inside(&it.bbox, &b) => {
-                        rings = ops::rings_of(ops::intersection(&rings, std::slice::from_ref(r)));
+                        rings =
+                            ops::rings_of(ops::intersection(&rings, std::slice::from_ref(r), grid));
                     }
                     (None, _) => rings.clear(),
                     _ => {}
@@ -172,8 +174,8 @@ fn paint(items: &[Item], board_clip: Option<&Ring>) -> Vec<Ring> {
             }
             rings
         })
-        .collect();
-    pieces.into_iter().flatten().collect()
+        .filter(|rings: &Vec<Ring>| !rings.is_empty())
+        .collect()
 }
 
 /// Composes one film as polygons. See the module docs for the order of operations.
@@ -213,14 +215,15 @@ pub fn compose_film(job: &FilmJob<'_>, opts: &VectorOptions) -> VectorFilm {
     for s in artwork_shapes(job) {
         items.extend(item(true, fl.rings(&s), false));
     }
-    let material = ops::union_many(paint(&items, board_clip.as_ref()));
+    let grid = fl.grid();
+    let material = ops::union_many(paint(&items, board_clip.as_ref(), grid), grid);
     drop(items);
 
     // 4. Black and clear.
     let black = if recipe.black_is_material {
         material
     } else {
-        ops::difference(std::slice::from_ref(&frame), &ops::rings_of(material))
+        ops::difference(std::slice::from_ref(&frame), &ops::rings_of(material), grid)
     };
 
     // 5. The edge offset, exactly as requested, on the composed film.
@@ -241,6 +244,7 @@ pub fn compose_film(job: &FilmJob<'_>, opts: &VectorOptions) -> VectorFilm {
 /// Grows or shrinks `black` by `d` mm inside the film rectangle: outside counts as clear
 /// when growing and as black when shrinking (as `raster::morphology` does at its borders).
 pub fn offset_within_film(black: Region, d: f64, tolerance: f64, space: &FilmSpace) -> Region {
+    let grid = ops::Grid::for_tolerance(tolerance);
     if d == 0.0 || black.is_empty() {
         return black;
     }
@@ -256,7 +260,7 @@ pub fn offset_within_film(black: Region, d: f64, tolerance: f64, space: &FilmSpa
         let mut rings = ops::rings_of(black);
         rings.push(outer);
         rings.push(hole);
-        ops::offset(&ops::simplify(&rings), d, tolerance)
+        ops::offset(&ops::simplify(&rings, grid), d, tolerance)
     };
-    ops::intersection(&ops::rings_of(grown), &[frame])
+    ops::intersection(&ops::rings_of(grown), &[frame], grid)
 }

@@ -125,6 +125,11 @@ impl Flattener {
         }
     }
 
+    /// The grid of the boolean operations for this flattener's tolerance.
+    pub fn grid(&self) -> ops::Grid {
+        ops::Grid::for_tolerance(self.tolerance_mm)
+    }
+
     fn map(&self, p: Point) -> Pt {
         self.space.apply(p)
     }
@@ -327,7 +332,10 @@ impl Flattener {
                 } else {
                     // Self-intersecting or concave: let the overlay resolve the non-zero
                     // winding rule into simple polygons with holes.
-                    ops::simplify(&[ring]).into_iter().flatten().collect()
+                    ops::simplify(&[ring], self.grid())
+                        .into_iter()
+                        .flatten()
+                        .collect()
                 }
             }
             Shape::Composite(parts) => {
@@ -340,11 +348,17 @@ impl Flattener {
                     }
                     acc = if *add {
                         acc.extend(p);
-                        ops::simplify(&acc).into_iter().flatten().collect()
+                        ops::simplify(&acc, self.grid())
+                            .into_iter()
+                            .flatten()
+                            .collect()
                     } else if acc.is_empty() {
                         acc
                     } else {
-                        ops::difference(&acc, &p).into_iter().flatten().collect()
+                        ops::difference(&acc, &p, self.grid())
+                            .into_iter()
+                            .flatten()
+                            .collect()
                     };
                 }
                 acc

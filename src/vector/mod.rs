@@ -46,7 +46,33 @@ pub const DEFAULT_DOT_FRACTION: f64 = 1.0 / 8.0;
 /// Smallest arc tolerance accepted, mm (10 nm): finer tolerances only multiply vertices.
 pub const MIN_ARC_TOLERANCE_MM: f64 = 1e-5;
 
+/// Largest arc tolerance a profile may ask for, µm: coarser chords would visibly flatten
+/// pads and track ends.
+pub const MAX_ARC_TOLERANCE_UM: f64 = 100.0;
+
+/// Checks an arc tolerance in µm given by `key` (the profile key
+/// `device.vector_arc_tolerance_um` or a command-line option): 0 (the default tolerance) or
+/// a positive number up to [`MAX_ARC_TOLERANCE_UM`].
+pub fn validate_arc_tolerance_um(um: f64, key: &str) -> Result<(), String> {
+    if um.is_finite() && (0.0..=MAX_ARC_TOLERANCE_UM).contains(&um) {
+        Ok(())
+    } else {
+        Err(format!(
+            "{key} = {um} must be between 0 and {MAX_ARC_TOLERANCE_UM} µm \
+             (0 means the default, 1/8 of a printer dot)"
+        ))
+    }
+}
+
 impl VectorOptions {
+    /// The options a profile asks for (`[device] vector_arc_tolerance_um`; 0 = default).
+    pub fn from_profile(profile: &crate::process::Profile) -> VectorOptions {
+        let um = profile.device.vector_arc_tolerance_um;
+        VectorOptions {
+            arc_tolerance_mm: (um.is_finite() && um > 0.0).then_some(um / 1000.0),
+        }
+    }
+
     /// The arc tolerance for a device of `dpi_x` × `dpi_y`, mm.
     pub fn tolerance_mm(&self, dpi_x: f64, dpi_y: f64) -> f64 {
         let t = match self.arc_tolerance_mm {

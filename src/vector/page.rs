@@ -144,7 +144,7 @@ pub fn vector_page(
             tolerance_mm,
         };
         let rings: Vec<_> = captions.iter().flat_map(|s| fl.rings(s)).collect();
-        let region = ops::simplify(&rings);
+        let region = ops::simplify(&rings, fl.grid());
         let matrix = [
             PT_PER_MM,
             0.0,
@@ -183,7 +183,7 @@ pub fn write_vector_outputs(
     layout: &Layout,
     profile: &Profile,
 ) -> Result<Vec<String>, String> {
-    let opts = VectorOptions::default();
+    let opts = VectorOptions::from_profile(profile);
     let mut vfilms = Vec::with_capacity(films.len());
     for f in films {
         let vf = vector_film_for(board, f, frame, profile, &opts)

@@ -126,34 +126,38 @@ fn object_spans(o: &Object, base: &DeviceMap, area: &Area, w: usize, h: usize) -
 /// Paints `[a, b)` of object `k` into `row` (erases when `!dark`), joining `k` with every
 /// object whose pixels it covers.
 fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, uf: &mut Uf) {
-    let mut out: Row = Vec::with_capacity(row.len() + 2);
-    for &(x0, x1, o) in row.iter() {
-        if x1 <= a || x0 >= b {
-            out.push((x0, x1, o));
-            continue;
+    // Runs are sorted and disjoint: the ones overlapping [a, b) are one block.
+    let i0 = row.partition_point(|r| r.1 <= a);
+    let i1 = row.partition_point(|r| r.0 < b).max(i0);
+    let mut mid: Vec<(u32, u32, u32)> = Vec::with_capacity(3);
+    if i0 < i1 {
+        let (first, last) = (row[i0], row[i1 - 1]);
+        if dark {
+            for r in &row[i0..i1] {
+                uf.union(k, r.2);
+            }
+        }
+        if first.0 < a {
+            mid.push((first.0, a, first.2));
         }
         if dark {
-            uf.union(k, o);
+            mid.push((a, b, k));
         }
-        if x0 < a {
-            out.push((x0, a, o));
+        if last.1 > b {
+            mid.push((b, last.1, last.2));
         }
-        if x1 > b {
-            out.push((b, x1, o));
-        }
+    } else if dark {
+        mid.push((a, b, k));
     }
-    if dark {
-        out.push((a, b, k));
-    }
-    out.sort_unstable_by_key(|r| r.0);
-    *row = out;
+    row.splice(i0..i1, mid);
 }
 
 /// Parts of `[x0, x1)` not covered by runs of `row` whose object's piece is `piece`.
 fn uncovered(row: &[(u32, u32, u32)], piece: &[u32], want: u32, x0: u32, x1: u32) -> Vec<u32> {
     let mut out = Vec::new();
     let mut x = x0;
-    for &(a, b, o) in row {
+    let start = row.partition_point(|r| r.1 <= x0);
+    for &(a, b, o) in &row[start..] {
         if b <= x || piece[o as usize] != want {
             continue;
         }
@@ -277,9 +281,11 @@ pub(super) fn closed_gaps(
                 for &x in &edge {
                     for ny in (y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1) {
                         let dy = (ny - y as i64) as f64 * area.mm_y;
-                        for &(c, d, q) in &rows[ny as usize] {
-                            if d as i64 <= x as i64 - r || c as i64 > x as i64 + r {
-                                continue;
+                        let near = &rows[ny as usize];
+                        let start = near.partition_point(|q| (q.1 as i64) <= x as i64 - r);
+                        for &(c, d, q) in &near[start..] {
+                            if c as i64 > x as i64 + r {
+                                break;
                             }
                             let pb = piece[q as usize];
                             if pb == pa || !shares(pa, pb) {
@@ -325,6 +331,18 @@ pub(super) fn closed_gaps(
         &DeviceMap::new(Point::new(0.0, 0.0), 0, 0, 25.4, 25.4),
         OUTLINE_TOLERANCE_MM,
     );
+    let mut objects_of: HashMap<u32, Vec<usize>> = HashMap::new();
+    for &((pa, pb), _) in &contacts {
+        objects_of.entry(pa).or_default();
+        objects_of.entry(pb).or_default();
+    }
+    for (i, o) in image.objects.iter().enumerate() {
+        if o.polarity == Polarity::Dark {
+            if let Some(v) = objects_of.get_mut(&piece[i]) {
+                v.push(i);
+            }
+        }
+    }
     let bounds: Vec<Bounds> = image.objects.iter().map(|o| o.shape.bounds()).collect();
     let found: Vec<Finding> = contacts
         .par_iter()
@@ -343,14 +361,11 @@ pub(super) fn closed_gaps(
             };
             let outline = |want: u32| -> Vec<[Pt; 2]> {
                 let mut edges = Vec::new();
-                for (i, o) in image.objects.iter().enumerate() {
-                    if piece[i] != want || o.polarity != Polarity::Dark {
-                        continue;
-                    }
+                for &i in objects_of.get(&want).map_or(&[][..], |v| &v[..]) {
                     if !overlaps(&bounds[i], &near) {
                         continue;
                     }
-                    for ring in fl.rings(&o.shape) {
+                    for ring in fl.rings(&image.objects[i].shape) {
                         for k in 0..ring.len() {
                             let e = [ring[k], ring[(k + 1) % ring.len()]];
                             if edge_near(&e, &near) {

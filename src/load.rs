@@ -273,14 +273,17 @@ pub fn load_board(inputs: &[InputFile], limits: &Limits) -> Result<Board, LoadEr
             load_one(f, hint, limits)
         })
         .collect();
+    let mut job_names: Vec<String> = Vec::new();
     for (res, input) in parsed.into_iter().zip(inputs) {
         let lf = res?;
         if let Content::Job = lf.content {
             let text = String::from_utf8_lossy(&input.bytes);
             match layers::parse_job_file(&text) {
                 Ok(job) => {
-                    if board.job_name.is_none() {
-                        board.job_name = job.project.clone();
+                    if let Some(p) = job.project.clone() {
+                        if !job_names.contains(&p) {
+                            job_names.push(p);
+                        }
                     }
                     job_ids.extend(job.files);
                 }
@@ -292,6 +295,21 @@ pub fn load_board(inputs: &[InputFile], limits: &Limits) -> Result<Board, LoadEr
             }
         }
         board.files.push(lf);
+    }
+    // Job files naming different boards: the input is probably more than one board, and no
+    // one name is right for all of them.
+    match job_names.len() {
+        0 => {}
+        1 => board.job_name = job_names.pop(),
+        _ => board.warnings.push(Warning::new(
+            "job files",
+            None,
+            format!(
+                "the job files name different boards ({}); is the input more than one \
+                 board? No board name was taken from them",
+                job_names.join(", ")
+            ),
+        )),
     }
     // The job file names files by their path as written by the EDA program; match on the
     // base name.

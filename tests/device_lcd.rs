@@ -238,4 +238,12 @@ fn device_flag_overrides_the_profile_and_needs_a_screen() {
     assert!(!out.status.success());
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("[device.lcd]"), "{err}");
+
+    // Vector sheets are for printers: asking for them with a screen is an error, not a
+    // silently missing file, and nothing is written (brief: nothing half-written).
+    let (dir, out) = run(&text, &["--device", "lcd", "--vector"]);
+    assert!(!out.status.success());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("--vector") && err.contains("lcd"), "{err}");
+    assert!(!dir.path().join("out").exists());
 }

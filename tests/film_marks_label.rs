@@ -4,8 +4,7 @@
 use umbra::film::font::text_shapes;
 use umbra::film::marks::{
     corner_marks, frame_shapes, label_lines, label_mirrored_in_board, label_shapes, label_size_mm,
-    side_indicator_shapes, side_indicator_size_mm, tile_label_lines, tile_marks, BoardFace,
-    LabelInfo,
+    side_indicator_shapes, side_indicator_size_mm, BoardFace, LabelInfo,
 };
 use umbra::image::{Bounds, Point, Shape, Similarity};
 
@@ -281,44 +280,4 @@ fn frame_and_cut_marks() {
         .any(|d| d.abs() < 1e-9);
         assert!(on_edge, "{sb:?}");
     }
-}
-
-#[test]
-fn tile_marks_sit_in_the_overlap() {
-    let overlap = Bounds {
-        min_x: 100.0,
-        min_y: 0.0,
-        max_x: 110.0,
-        max_y: 150.0,
-    };
-    let shapes = tile_marks(overlap, 6.0, 0.2);
-    assert!(!shapes.is_empty());
-    let mut b = Bounds::EMPTY;
-    for s in &shapes {
-        b.union(&s.bounds());
-    }
-    assert!(overlap.grown(0.1 + 1e-9).contains(&b), "{b:?}");
-    // Two targets (2 × 6 shapes) spread along the strip: a quarter and three quarters of 150 mm.
-    assert_eq!(shapes.len(), 12);
-    assert!(b.height() > 75.0);
-    // A strip narrower than the mark shrinks the mark to fit.
-    let thin = Bounds {
-        min_x: 0.0,
-        min_y: 0.0,
-        max_x: 200.0,
-        max_y: 3.0,
-    };
-    let mut tb = Bounds::EMPTY;
-    for s in tile_marks(thin, 6.0, 0.2) {
-        tb.union(&s.bounds());
-    }
-    assert!(thin.grown(0.1 + 1e-9).contains(&tb));
-    assert_eq!(tile_label_lines(1, 2, 2, 3)[0], "row 1 / col 2");
-    assert!(!label_shapes(
-        &tile_label_lines(1, 2, 2, 3),
-        Point::new(0.0, 0.0),
-        2.0,
-        false
-    )
-    .is_empty());
 }

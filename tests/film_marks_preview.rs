@@ -67,7 +67,7 @@ fn preview_font_and_marks() {
         3.0,
         false,
     ));
-    let lines = marks::tile_label_lines(1, 2, 2, 3);
+    let lines = vec!["row 1 / col 2".to_string(), "of 2 × 3 tiles".to_string()];
     film.extend(marks::label_shapes(
         &lines,
         Point::new(2.0, 15.0),

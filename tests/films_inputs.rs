@@ -2,7 +2,7 @@
 //!
 //! Every refusal must say what is wrong and name the thing at fault, exit non-zero, and leave
 //! no output behind: no output folder and no `.NAME.partial-*` staging folder next to it
-//! (src/films.rs StagedDir: a failed run leaves nothing half-written). A .zip archive of a
+//! (src/films/staged.rs StagedDir: a failed run leaves nothing half-written). A .zip archive of a
 //! board is an ordinary input.
 
 mod films_support;

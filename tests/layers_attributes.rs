@@ -387,3 +387,37 @@ fn odd_input_never_panics() {
     let long = "é".repeat(40_000);
     assert_eq!(layers::from_content(&long), None);
 }
+
+#[test]
+fn job_files_naming_different_boards_give_no_board_name_and_a_warning() {
+    // Gerber job files (Gerber Layer Format Specification rev 2024.05, "Gerber Job Format":
+    // GeneralSpecs.ProjectId.Name names the project). One name is taken; two different names
+    // mean two boards were given together, and neither name is right for both.
+    let job = |name: &str| {
+        format!(
+            r#"{{"Header": {{"GenerationSoftware": {{"Vendor": "Larkspur"}}}},
+                "GeneralSpecs": {{"ProjectId": {{"Name": "{name}"}}}}, "FilesAttributes": []}}"#
+        )
+    };
+    let gerber = "%FSLAX26Y26*%%MOMM*%%ADD10C,0.5*%D10*X0Y0D03*M02*\n";
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("a.gbrjob"), job("Wren")).unwrap();
+    std::fs::write(dir.path().join("wren-F_Cu.gbr"), gerber).unwrap();
+    let board = umbra::load::load_paths(&[dir.path().to_path_buf()], &Default::default()).unwrap();
+    assert_eq!(board.job_name.as_deref(), Some("Wren"));
+    assert!(board.warnings.is_empty(), "{:?}", board.warnings);
+
+    std::fs::write(dir.path().join("b.gbrjob"), job("Finch")).unwrap();
+    let board = umbra::load::load_paths(&[dir.path().to_path_buf()], &Default::default()).unwrap();
+    assert_eq!(board.job_name, None);
+    let w: Vec<String> = board.warnings.iter().map(|w| w.to_string()).collect();
+    assert!(
+        w.iter().any(|w| w.contains("Wren") && w.contains("Finch")),
+        "{w:?}"
+    );
+
+    // The same name twice is one board.
+    std::fs::write(dir.path().join("b.gbrjob"), job("Wren")).unwrap();
+    let board = umbra::load::load_paths(&[dir.path().to_path_buf()], &Default::default()).unwrap();
+    assert_eq!(board.job_name.as_deref(), Some("Wren"));
+}

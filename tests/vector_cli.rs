@@ -57,7 +57,20 @@ fn films_with_vector_writes_matching_pdf_and_svgs() {
     assert_eq!(media_boxes(&raster), media_boxes(&vector));
     let manifest: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("manifest.json")).unwrap()).unwrap();
+    // The manifest lists every vector file, and each listed file exists.
+    let listed: Vec<&str> = manifest["vector_files"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_str().unwrap())
+        .collect();
+    assert!(listed.contains(&"films-vector.pdf"), "{listed:?}");
+    for name in &listed {
+        assert!(out.join(name).is_file(), "{name} listed but missing");
+    }
     for f in manifest["films"].as_array().unwrap() {
+        let svg_name = format!("{}.svg", f["key"].as_str().unwrap());
+        assert!(listed.contains(&svg_name.as_str()), "{svg_name} not listed");
         let svg = std::fs::read_to_string(out.join(format!("{}.svg", f["key"].as_str().unwrap())))
             .unwrap();
         assert!(

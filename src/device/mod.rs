@@ -419,6 +419,7 @@ pub fn run(
         device: profile.device.kind,
         images,
         check: None,
+        vector_files: Vec::new(),
     };
     let manifest =
         serde_json::to_string_pretty(&summary).map_err(|e| FilmsError::Output(e.to_string()))?;

@@ -11,9 +11,9 @@ mod pack;
 mod size;
 mod tile;
 
-pub use pack::{layout, MAX_PIECES};
+pub use pack::{layout, layout_with_mark_bands, MAX_PIECES};
 pub use size::{iso_216, mm_to_pt, SheetSize, SheetSizeError, MAX_SHEET_SIDE_MM, MM_PER_INCH};
-pub use tile::{split_into_tiles, tile_count};
+pub use tile::{split_into_tiles, tile_count, tile_marks, Edge, OverlapEnd, TileMark};
 
 use crate::image::Bounds;
 use serde::{Deserialize, Serialize};
@@ -182,6 +182,35 @@ pub struct Tile {
     pub source_rect: Bounds,
 }
 
+/// Room beside a piece's film block, mm, reserved for a tile's alignment marks.
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
+pub struct Bands {
+    pub left: f64,
+    pub right: f64,
+    pub top: f64,
+    pub bottom: f64,
+}
+
+impl Tile {
+    /// The mark bands of this tile when each band is `band_mm` wide.
+    ///
+    /// Where two tiles overlap side by side (several columns), the marks of that overlap must
+    /// sit at film coordinates both tiles show and outside both film blocks: above and below
+    /// the overlap strip. So tiles of a film with several columns get bands on their top and
+    /// bottom edges, and tiles of a film with several rows get bands on their left and right
+    /// edges. An untiled film (1 × 1) gets none.
+    pub fn bands(&self, band_mm: f64) -> Bands {
+        let across = if self.cols > 1 { band_mm } else { 0.0 };
+        let along = if self.rows > 1 { band_mm } else { 0.0 };
+        Bands {
+            left: along,
+            right: along,
+            top: across,
+            bottom: across,
+        }
+    }
+}
+
 /// One film (or one tile of it) on a sheet.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Placement {
@@ -206,6 +235,23 @@ impl Placement {
             min_y: self.y_mm,
             max_x: self.x_mm + self.width_mm,
             max_y: self.y_mm + self.height_mm,
+        }
+    }
+
+    /// The mark bands beside this piece (none for a whole film).
+    pub fn bands(&self, band_mm: f64) -> Bands {
+        self.tile.map(|t| t.bands(band_mm)).unwrap_or_default()
+    }
+
+    /// The rectangle the placement covers on the sheet together with its mark bands.
+    pub fn reserved_rect(&self, band_mm: f64) -> Bounds {
+        let b = self.bands(band_mm);
+        let r = self.rect();
+        Bounds {
+            min_x: r.min_x - b.left,
+            min_y: r.min_y - b.bottom,
+            max_x: r.max_x + b.right,
+            max_y: r.max_y + b.top,
         }
     }
 }

@@ -8,7 +8,9 @@
 //! group together), then into single pieces. The rules are described in `docs/sheets.md`.
 
 use super::tile::{split_into_tiles, tile_count, FIT_TOLERANCE_MM};
-use super::{FilmRequest, Layout, LayoutError, Orientation, Placement, SheetPlan, SheetSpec, Tile};
+use super::{
+    Bands, FilmRequest, Layout, LayoutError, Orientation, Placement, SheetPlan, SheetSpec, Tile,
+};
 use crate::image::Bounds;
 use std::cmp::Ordering;
 use std::collections::{BTreeMap, HashSet};
@@ -28,6 +30,27 @@ pub const MAX_PIECES: u64 = 10_000;
 /// - With `Orientation::Auto` the orientation needing fewer sheets is used, then the one with
 ///   fewer tiles, then portrait.
 pub fn layout(films: &[FilmRequest], spec: &SheetSpec) -> Result<Layout, LayoutError> {
+    layout_with_mark_bands(films, spec, 0.0)
+}
+
+/// Lays out `films` as [`layout`] does, with room for tile alignment marks: every tile is
+/// packed together with its mark bands ([`Tile::bands`] of `band_mm`), so tile and bands fit
+/// the printable area and stay `gap_mm` clear of other pieces and their bands.
+///
+/// # Guarantees
+/// Those of [`layout`], where a tile's extent is its [`Placement::reserved_rect`]; the
+/// placement itself is the film block only, and neighbouring tiles still overlap by exactly
+/// `tile_overlap_mm` of film. With `band_mm = 0` the layout equals [`layout`]'s.
+pub fn layout_with_mark_bands(
+    films: &[FilmRequest],
+    spec: &SheetSpec,
+    band_mm: f64,
+) -> Result<Layout, LayoutError> {
+    if !(band_mm.is_finite() && band_mm >= 0.0) {
+        return Err(LayoutError::BadSpec(format!(
+            "The tile mark band is {band_mm} mm; it must be zero or more."
+        )));
+    }
     validate_spec(spec)?;
     validate_films(films)?;
     let candidates: &[bool] = match spec.orientation {
@@ -38,7 +61,7 @@ pub fn layout(films: &[FilmRequest], spec: &SheetSpec) -> Result<Layout, LayoutE
     let mut best: Option<Layout> = None;
     let mut first_error = None;
     for &landscape in candidates {
-        match layout_oriented(films, spec, landscape) {
+        match layout_oriented(films, spec, landscape, band_mm) {
             Ok(candidate) => {
                 let better = match &best {
                     None => true,
@@ -127,9 +150,23 @@ fn validate_films(films: &[FilmRequest]) -> Result<(), LayoutError> {
 struct Piece {
     film: usize,
     copy: u32,
+    /// The film block, mm.
     width: f64,
     height: f64,
     tile: Option<Tile>,
+    /// Room for alignment marks beside the block (tiles only).
+    bands: Bands,
+}
+
+impl Piece {
+    /// The size the piece takes on the sheet: its block and its mark bands.
+    fn outer(&self) -> (f64, f64) {
+        let b = &self.bands;
+        (
+            self.width + b.left + b.right,
+            self.height + b.top + b.bottom,
+        )
+    }
 }
 
 /// Pieces that should share a sheet: `by_film[f][copy]` holds the pieces of one copy of one
@@ -163,8 +200,9 @@ impl Bundle {
         let mut h: f64 = 0.0;
         let mut w: f64 = 0.0;
         for p in self.by_film.iter().flatten().flatten() {
-            h = h.max(p.height);
-            w = w.max(p.width);
+            let (pw, ph) = p.outer();
+            h = h.max(ph);
+            w = w.max(pw);
         }
         (h, w)
     }
@@ -181,6 +219,7 @@ fn layout_oriented(
     films: &[FilmRequest],
     spec: &SheetSpec,
     landscape: bool,
+    band_mm: f64,
 ) -> Result<Layout, LayoutError> {
     let (short, long) = spec.size.short_long_mm();
     let (sheet_w, sheet_h) = if landscape {
@@ -209,14 +248,22 @@ fn layout_oriented(
     let mut total_pieces: u64 = 0;
     let mut pieces_of = BTreeMap::new(); // film id → pieces per copy
     for f in films {
-        let cols = tile_count(f.width_mm, pw, spec.tile_overlap_mm);
-        let rows = tile_count(f.height_mm, ph, spec.tile_overlap_mm);
+        let (cols, rows, room_w, room_h) = tile_grid(f, spec.tile_overlap_mm, (pw, ph), band_mm);
         let tiled = cols > 1.0 || rows > 1.0;
-        if (cols > 1.0 && spec.tile_overlap_mm >= pw) || (rows > 1.0 && spec.tile_overlap_mm >= ph)
+        if (cols > 1.0 && spec.tile_overlap_mm >= room_w)
+            || (rows > 1.0 && spec.tile_overlap_mm >= room_h)
         {
+            let room = if (room_w, room_h) == (pw, ph) {
+                format!("the printable area of {sheet_name} ({pw} × {ph} mm)")
+            } else {
+                format!(
+                    "the room for one tile on {sheet_name} ({room_w} × {room_h} mm: the \
+                     printable {pw} × {ph} mm less {band_mm} mm bands for alignment marks)"
+                )
+            };
             return Err(LayoutError::BadSpec(format!(
                 "Film {} ({} × {} mm) must be tiled, but the tile overlap of {} mm is not \
-                 smaller than the printable area of {sheet_name} ({pw} × {ph} mm).",
+                 smaller than {room}.",
                 f.id, f.width_mm, f.height_mm, spec.tile_overlap_mm
             )));
         }
@@ -252,6 +299,7 @@ fn layout_oriented(
                 copy: 0,
                 width: t.source_rect.width(),
                 height: t.source_rect.height(),
+                bands: t.bands(band_mm),
                 tile: Some(t),
             })
             .collect()
@@ -262,6 +310,7 @@ fn layout_oriented(
                 width: f.width_mm,
                 height: f.height_mm,
                 tile: None,
+                bands: Bands::default(),
             }]
         };
         let copies: Vec<Vec<Piece>> = (0..f.copies)
@@ -339,6 +388,32 @@ fn first_id(b: &Bundle) -> usize {
         .unwrap_or(usize::MAX)
 }
 
+/// How many tile columns and rows film `f` needs, and the room one tile may take along x and
+/// y: the printable size less the mark bands its tiles carry ([`Tile::bands`]: top and bottom
+/// when there are several columns, left and right when there are several rows). Bands can
+/// make the other axis need tiling too, so the counts are recomputed until they settle; they
+/// only grow, and each axis can switch bands on only once, so this ends after three rounds.
+fn tile_grid(
+    f: &FilmRequest,
+    overlap: f64,
+    (pw, ph): (f64, f64),
+    band_mm: f64,
+) -> (f64, f64, f64, f64) {
+    let (mut cols, mut rows) = (1.0, 1.0);
+    loop {
+        let room_w = pw - if rows > 1.0 { 2.0 * band_mm } else { 0.0 };
+        let room_h = ph - if cols > 1.0 { 2.0 * band_mm } else { 0.0 };
+        let next_cols = tile_count(f.width_mm, room_w, overlap);
+        let next_rows = tile_count(f.height_mm, room_h, overlap);
+        let settled = next_cols == cols && next_rows == rows;
+        // NaN or infinite counts (room at or below the overlap) are reported by the caller.
+        if settled || !(next_cols.is_finite() && next_rows.is_finite()) {
+            return (next_cols, next_rows, room_w, room_h);
+        }
+        (cols, rows) = (next_cols, next_rows);
+    }
+}
+
 /// Groups pieces into bundles: one per group, one per ungrouped film. Films inside a bundle
 /// are ordered larger first.
 fn make_bundles(
@@ -403,18 +478,19 @@ struct Room {
 /// it in `shelves`. Returns the shelf index and the x offset from the printable left edge.
 fn book(shelves: &mut Vec<Shelf>, piece: &Piece, room: Room) -> Option<(usize, f64)> {
     let tol = FIT_TOLERANCE_MM;
+    let (width, height) = piece.outer();
     let shelf_count = shelves.len();
     for (index, shelf) in shelves.iter_mut().enumerate() {
         let x = shelf.used_width + room.gap;
-        if x + piece.width > room.width + tol {
+        if x + width > room.width + tol {
             continue;
         }
         // The last shelf may grow downwards when there is room below it.
-        let fits_height = piece.height <= shelf.height + tol
-            || (index + 1 == shelf_count && shelf.top + piece.height <= room.height + tol);
+        let fits_height = height <= shelf.height + tol
+            || (index + 1 == shelf_count && shelf.top + height <= room.height + tol);
         if fits_height {
-            shelf.height = shelf.height.max(piece.height);
-            shelf.used_width = x + piece.width;
+            shelf.height = shelf.height.max(height);
+            shelf.used_width = x + width;
             return Some((index, x));
         }
     }
@@ -422,13 +498,13 @@ fn book(shelves: &mut Vec<Shelf>, piece: &Piece, room: Room) -> Option<(usize, f
         Some(s) => s.top + s.height + room.gap,
         None => 0.0,
     };
-    if top + piece.height > room.height + tol || piece.width > room.width + tol {
+    if top + height > room.height + tol || width > room.width + tol {
         return None;
     }
     shelves.push(Shelf {
         top,
-        height: piece.height,
-        used_width: piece.width,
+        height,
+        used_width: width,
     });
     Some((shelves.len() - 1, 0.0))
 }
@@ -465,9 +541,10 @@ impl SheetState {
             .map(|(p, shelf, x)| Placement {
                 film: p.film,
                 copy: p.copy,
-                x_mm: printable.min_x + x,
+                // The booked spot is the piece with its mark bands; the placement is the block.
+                x_mm: printable.min_x + x + p.bands.left,
                 // Pieces hang from their shelf's top edge.
-                y_mm: printable.max_y - shelves[shelf].top - p.height,
+                y_mm: printable.max_y - shelves[shelf].top - p.bands.top - p.height,
                 width_mm: p.width,
                 height_mm: p.height,
                 tile: p.tile,

@@ -6,7 +6,8 @@
 //! every overlap the same.
 
 use super::Tile;
-use crate::image::Bounds;
+use crate::image::{Bounds, Point};
+use serde::Serialize;
 
 /// Lengths within this of each other count as equal: it absorbs the rounding of inch-based
 /// sheet sizes (215.9 mm) without letting anything visibly too large through (1 nm).
@@ -97,6 +98,122 @@ pub fn split_into_tiles(
     tiles
 }
 
+/// The edge of a tile's film block along which a mark band lies.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Edge {
+    Top,
+    Bottom,
+    Left,
+    Right,
+}
+
+/// Which end of an overlap strip a mark stands at: `Start` at the smaller film coordinate
+/// (the left end of a strip between columns, the lower end of a strip between rows).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum OverlapEnd {
+    Start,
+    End,
+}
+
+/// One alignment mark of a tile. The neighbour carries a mark with the same `edge`, `end`
+/// and `at`, so the two coincide when the tiles are laid over each other in register.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct TileMark {
+    /// The neighbouring tile sharing this mark: (row, col), 0-based.
+    pub neighbour: [u32; 2],
+    pub edge: Edge,
+    pub end: OverlapEnd,
+    /// The mark's reference point in film-local mm (origin lower-left, y up): on the band's
+    /// centre line, across from the overlap's end moved `inset_mm` into the overlap. It lies
+    /// in the band, outside the film.
+    pub at: Point,
+    /// The overlap strip's extent along the shared edge, film-local mm: (start, end).
+    pub overlap: (f64, f64),
+}
+
+/// The alignment marks of `tile`, one of the tiles `all` of one film (as made by
+/// [`split_into_tiles`]), whose bands are `band_mm` wide ([`Tile::bands`]).
+///
+/// For each neighbour, the overlap strip the two share has two ends; each end gets a mark in
+/// both bands that run across the strip (above and below a strip between columns, left and
+/// right of a strip between rows), `inset_mm` inside the strip so that a mark's pen stays off
+/// the film block's corner. Strips narrower than `2·inset_mm` get no marks.
+pub fn tile_marks(all: &[Tile], tile: &Tile, band_mm: f64, inset_mm: f64) -> Vec<TileMark> {
+    let mut marks = Vec::new();
+    let r = tile.source_rect;
+    let find = |row: i64, col: i64| {
+        all.iter()
+            .find(|t| t.row as i64 == row && t.col as i64 == col)
+    };
+    let (row, col) = (tile.row as i64, tile.col as i64);
+    // Neighbours across a vertical edge: the strip runs along x, marks sit above and below.
+    for dc in [-1i64, 1] {
+        let Some(n) = find(row, col + dc) else {
+            continue;
+        };
+        let (start, end) = if dc > 0 {
+            (n.source_rect.min_x, r.max_x)
+        } else {
+            (r.min_x, n.source_rect.max_x)
+        };
+        if end - start < 2.0 * inset_mm {
+            continue;
+        }
+        for (edge, y) in [
+            (Edge::Top, r.max_y + band_mm / 2.0),
+            (Edge::Bottom, r.min_y - band_mm / 2.0),
+        ] {
+            for (which, x) in [
+                (OverlapEnd::Start, start + inset_mm),
+                (OverlapEnd::End, end - inset_mm),
+            ] {
+                marks.push(TileMark {
+                    neighbour: [n.row, n.col],
+                    edge,
+                    end: which,
+                    at: Point::new(x, y),
+                    overlap: (start, end),
+                });
+            }
+        }
+    }
+    // Neighbours across a horizontal edge: the strip runs along y, marks sit left and right.
+    // Rows count from the top, so the row above has the larger y.
+    for dr in [-1i64, 1] {
+        let Some(n) = find(row + dr, col) else {
+            continue;
+        };
+        let (start, end) = if dr < 0 {
+            (n.source_rect.min_y, r.max_y)
+        } else {
+            (r.min_y, n.source_rect.max_y)
+        };
+        if end - start < 2.0 * inset_mm {
+            continue;
+        }
+        for (edge, x) in [
+            (Edge::Left, r.min_x - band_mm / 2.0),
+            (Edge::Right, r.max_x + band_mm / 2.0),
+        ] {
+            for (which, y) in [
+                (OverlapEnd::Start, start + inset_mm),
+                (OverlapEnd::End, end - inset_mm),
+            ] {
+                marks.push(TileMark {
+                    neighbour: [n.row, n.col],
+                    edge,
+                    end: which,
+                    at: Point::new(x, y),
+                    overlap: (start, end),
+                });
+            }
+        }
+    }
+    marks
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -111,6 +228,41 @@ mod tests {
         assert_eq!(tile_count(564.0, 287.0, 10.0), 2.0);
         assert_eq!(tile_count(564.001, 287.0, 10.0), 3.0);
         assert_eq!(tile_count(287.0, 287.0, 10.0), 1.0);
+    }
+
+    #[test]
+    fn neighbours_share_their_marks() {
+        // 2 × 2 tiles of a 100 × 80 mm film with 10 mm overlap: 55 × 45 mm each, columns
+        // at x 0–55 and 45–100, rows at y 35–80 (top) and 0–45 (hand arithmetic).
+        let all = split_into_tiles(100.0, 80.0, 2, 2, 10.0);
+        let at = |t: &Tile| tile_marks(&all, t, 3.0, 0.1);
+        let (tl, tr, bl) = (at(&all[0]), at(&all[1]), at(&all[2]));
+        assert_eq!(tl.len(), 8);
+        // The top-left tile's marks shared with the top-right one equal that tile's own.
+        let shared = |a: &[TileMark], b: &[TileMark], a_rc: [u32; 2]| {
+            let mut x: Vec<_> = a.iter().filter(|m| m.neighbour != a_rc).collect();
+            x.retain(|m| {
+                b.iter()
+                    .any(|o| o.at == m.at && o.edge == m.edge && o.end == m.end)
+            });
+            x.len()
+        };
+        assert_eq!(shared(&tl, &tr, [1, 0]), 4);
+        assert_eq!(shared(&tl, &bl, [0, 1]), 4);
+        let top_start = tl
+            .iter()
+            .find(|m| m.neighbour == [0, 1] && m.edge == Edge::Top && m.end == OverlapEnd::Start)
+            .unwrap();
+        assert_eq!(top_start.at, Point::new(45.1, 81.5));
+        assert_eq!(top_start.overlap, (45.0, 55.0));
+        let left_end = tl
+            .iter()
+            .find(|m| m.neighbour == [1, 0] && m.edge == Edge::Left && m.end == OverlapEnd::End)
+            .unwrap();
+        assert_eq!(left_end.at, Point::new(-1.5, 44.9));
+        // An untiled film has no marks.
+        let one = split_into_tiles(50.0, 30.0, 1, 1, 10.0);
+        assert!(tile_marks(&one, &one[0], 3.0, 0.1).is_empty());
     }
 
     #[test]

@@ -1,6 +1,7 @@
 //! Vector films on the same sheets as the raster path: `films-vector.pdf` has one page per
 //! raster sheet, each film piece at exactly the raster piece's pixel-aligned position
-//! (`films::piece_pixels`), tiles clipped to the same pixel blocks, and the same captions.
+//! (`films::piece_pixels`), tiles clipped to the same pixel blocks, and the same captions and
+//! tile alignment marks.
 //!
 //! # Placement
 //! A film point at film mm (u, v) is raster film pixel (u/kx, fh − v/ky) (`kx`, `ky` the film's
@@ -18,6 +19,7 @@ use super::flatten::{FilmSpace, Flattener};
 use super::{ops, svg, Region, VectorOptions};
 use crate::film::compose::{BoardFrame, FilmJob};
 use crate::film::marks;
+use crate::films::sheets::tile_mark_shapes;
 use crate::films::{caption_shapes, drill_files, piece_pixels, MadeFilm, StagedDir};
 use crate::layers::LayerFunction;
 use crate::load::{Board, Content};
@@ -124,6 +126,7 @@ pub fn vector_page(
         ];
         page.art.push(area(&vf.black, matrix, Some(clip)));
         captions.extend(caption_shapes(film, p, profile.films.copies));
+        captions.extend(tile_mark_shapes(film, p, profile, sheet_h));
     }
     if !captions.is_empty() {
         // Captions are drawn in sheet mm on the raster sheet's grid, whose top row is the

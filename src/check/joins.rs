@@ -25,10 +25,10 @@
 //! object): a clearance that closes is the "clearance lost" check's business.
 
 use super::area::Area;
-use super::measure::{row_runs, Labels};
+use super::measure::Labels;
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, Object, Point, Polarity};
-use crate::raster::{render_with, Bitmap, DeviceMap, RenderOptions};
+use crate::raster::{Bitmap, DeviceMap, ObjectRows, SpanScratch};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -63,98 +63,138 @@ impl Uf {
     }
 }
 
-/// The spans (crop row, x0, x1) of one object on the film's grid within the checked area.
-fn object_spans(o: &Object, base: &DeviceMap, area: &Area, w: usize, h: usize) -> Vec<[u32; 3]> {
-    let b = o.shape.bounds();
-    if b.is_empty() || !o.shape.is_finite() {
-        return Vec::new();
-    }
+/// Crop rows per band of the design painting (bands are painted in parallel).
+const BAND_ROWS: usize = 64;
+
+/// The design's runs: per crop row, the runs that remember which object painted them last,
+/// and the pairs of objects that share a pixel (overlap in the design).
+struct Design {
+    rows: Vec<Row>,
+    overlaps: Vec<(u32, u32)>,
+}
+
+/// Paints every object of the layer in order into crop rows, band by band (bands are
+/// independent: each row depends only on the objects in drawing order).
+fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
+    let base = area.map.with_mirror(false);
+    let source = ObjectRows::new(objects, &base);
     // The checked area in unmirrored film columns.
     let ux0 = if area.map.mirror {
         area.map.width.saturating_sub(area.x0 + w)
     } else {
         area.x0
     };
-    let (p, q) = (
-        base.to_px(Point::new(b.min_x, b.min_y)),
-        base.to_px(Point::new(b.max_x, b.max_y)),
-    );
-    let clamp = |v: f64, lo: usize, hi: usize| (v.max(lo as f64).min(hi as f64)) as usize;
-    let x0 = clamp(p.0.min(q.0).floor() - 1.0, ux0, ux0 + w);
-    let x1 = clamp(p.0.max(q.0).ceil() + 1.0, ux0, ux0 + w);
-    let y0 = clamp(p.1.min(q.1).floor() - 1.0, area.y0, area.y0 + h);
-    let y1 = clamp(p.1.max(q.1).ceil() + 1.0, area.y0, area.y0 + h);
-    if x0 >= x1 || y0 >= y1 {
-        return Vec::new();
-    }
-    // The window's pixel (i, j) is the film's unmirrored pixel (x0 + i, y0 + j).
-    let mut win = DeviceMap::new(
-        Point::new(
-            base.origin.x + x0 as f64 / base.px_per_mm_x(),
-            base.origin.y + (base.height - y1) as f64 / base.px_per_mm_y(),
-        ),
-        x1 - x0,
-        y1 - y0,
-        base.dpi_x,
-        base.dpi_y,
-    );
-    win.scale_x = base.scale_x;
-    win.scale_y = base.scale_y;
-    let bm = render_with(std::slice::from_ref(o), &win, &RenderOptions::serial());
-    let mut out = Vec::new();
-    let mut runs = Vec::new();
-    for j in 0..bm.height() {
-        row_runs(bm.row(j), &mut runs);
-        for &(a, c) in &runs {
-            let (a, c) = (a as usize + x0, (c as usize).min(bm.width()) + x0);
-            // Back to the film's own (possibly mirrored) columns, then to the crop.
-            let (fa, fc) = if area.map.mirror {
-                (area.map.width - c, area.map.width - a)
-            } else {
-                (a, c)
-            };
-            out.push([
-                (y0 + j - area.y0) as u32,
-                (fa - area.x0) as u32,
-                (fc - area.x0) as u32,
-            ]);
+    let ux1 = ux0 + w;
+    let nbands = h.div_ceil(BAND_ROWS);
+    let mut lists: Vec<Vec<u32>> = vec![Vec::new(); nbands];
+    for i in 0..objects.len() {
+        if let Some(((r0, r1), _)) = source.rows(i) {
+            let (c0, c1) = (r0.max(area.y0), r1.min(area.y0 + h));
+            if c0 < c1 {
+                let (b0, b1) = ((c0 - area.y0) / BAND_ROWS, (c1 - 1 - area.y0) / BAND_ROWS);
+                for l in &mut lists[b0..=b1] {
+                    l.push(i as u32);
+                }
+            }
         }
     }
-    out
+    let bands: Vec<(Vec<Row>, Vec<(u32, u32)>)> = lists
+        .par_iter()
+        .enumerate()
+        .map(|(b, list)| {
+            let (y0, y1) = (b * BAND_ROWS, ((b + 1) * BAND_ROWS).min(h));
+            let mut rows: Vec<Row> = vec![Vec::new(); y1 - y0];
+            let mut overlaps = Vec::new();
+            let mut work = SpanScratch::default();
+            let mut spans = Vec::new();
+            for &k in list {
+                let Some(((r0, r1), dark)) = source.rows(k as usize) else {
+                    continue;
+                };
+                for y in r0.max(area.y0 + y0)..r1.min(area.y0 + y1) {
+                    source.spans(k as usize, y, &mut work, &mut spans);
+                    let row = &mut rows[y - area.y0 - y0];
+                    for &(a, c) in &spans {
+                        let (a, c) = (a.max(ux0), c.min(ux1));
+                        if a >= c {
+                            continue;
+                        }
+                        // Back to the film's own (possibly mirrored) columns, then to the crop.
+                        let (fa, fc) = if area.map.mirror {
+                            (area.map.width - c, area.map.width - a)
+                        } else {
+                            (a, c)
+                        };
+                        let (ca, cc) = ((fa - area.x0) as u32, (fc - area.x0) as u32);
+                        paint(row, ca, cc, k, dark, &mut overlaps);
+                    }
+                }
+            }
+            (rows, overlaps)
+        })
+        .collect();
+    let mut design = Design {
+        rows: Vec::with_capacity(h),
+        overlaps: Vec::new(),
+    };
+    for (rows, overlaps) in bands {
+        design.rows.extend(rows);
+        design.overlaps.extend(overlaps);
+    }
+    design
 }
 
-/// Paints `[a, b)` of object `k` into `row` (erases when `!dark`), joining `k` with every
+/// Paints `[a, b)` of object `k` into `row` (erases when `!dark`), noting in `overlaps` every
 /// object whose pixels it covers.
-fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, uf: &mut Uf) {
+fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, overlaps: &mut Vec<(u32, u32)>) {
     // Runs are sorted and disjoint: the ones overlapping [a, b) are one block.
     let i0 = row.partition_point(|r| r.1 <= a);
     let i1 = row.partition_point(|r| r.0 < b).max(i0);
-    let mut mid: Vec<(u32, u32, u32)> = Vec::with_capacity(3);
+    let mut mid = [(0, 0, 0); 3];
+    let mut m = 0;
     if i0 < i1 {
         let (first, last) = (row[i0], row[i1 - 1]);
         if dark {
             for r in &row[i0..i1] {
-                uf.union(k, r.2);
+                // The same pair comes up row after row: note it once in a stretch.
+                if r.2 != k && overlaps.last() != Some(&(k, r.2)) {
+                    overlaps.push((k, r.2));
+                }
             }
         }
         if first.0 < a {
-            mid.push((first.0, a, first.2));
+            mid[m] = (first.0, a, first.2);
+            m += 1;
         }
         if dark {
-            mid.push((a, b, k));
+            mid[m] = (a, b, k);
+            m += 1;
         }
         if last.1 > b {
-            mid.push((b, last.1, last.2));
+            mid[m] = (b, last.1, last.2);
+            m += 1;
         }
     } else if dark {
-        mid.push((a, b, k));
+        mid[0] = (a, b, k);
+        m = 1;
     }
-    row.splice(i0..i1, mid);
+    if i1 - i0 == m {
+        row[i0..i1].copy_from_slice(&mid[..m]);
+    } else {
+        row.splice(i0..i1, mid[..m].iter().copied());
+    }
 }
 
-/// Parts of `[x0, x1)` not covered by runs of `row` whose object's piece is `piece`.
-fn uncovered(row: &[(u32, u32, u32)], piece: &[u32], want: u32, x0: u32, x1: u32) -> Vec<u32> {
-    let mut out = Vec::new();
+/// Appends to `out` the parts of `[x0, x1)` not covered by runs of `row` whose object's piece
+/// is `want`.
+fn uncovered(
+    row: &[(u32, u32, u32)],
+    piece: &[u32],
+    want: u32,
+    x0: u32,
+    x1: u32,
+    out: &mut Vec<u32>,
+) {
     let mut x = x0;
     let start = row.partition_point(|r| r.1 <= x0);
     for &(a, b, o) in &row[start..] {
@@ -175,7 +215,6 @@ fn uncovered(row: &[(u32, u32, u32)], piece: &[u32], want: u32, x0: u32, x1: u32
     if x < x1 {
         out.extend(x..x1);
     }
-    out
 }
 
 /// The nearest pixels of two joined pieces: squared distance (mm²) and both pixels.
@@ -197,55 +236,48 @@ pub(super) fn closed_gaps(
         return Vec::new();
     }
     let (w, h) = (material.width(), material.height());
-    let base = area.map.with_mirror(false);
-    let spans: Vec<Vec<[u32; 3]>> = image
-        .objects
-        .par_iter()
-        .map(|o| object_spans(o, &base, area, w, h))
-        .collect();
 
     // 1. Design pieces: objects painted in order, joined where they share a pixel.
+    let Design {
+        rows,
+        overlaps: shared,
+    } = paint_design(&image.objects, area, w, h);
     let n = image.objects.len() as u32;
     let mut uf = Uf((0..n).collect());
-    let mut rows: Vec<Row> = vec![Vec::new(); h];
-    for (k, (o, s)) in image.objects.iter().zip(&spans).enumerate() {
-        let dark = o.polarity == Polarity::Dark;
-        for &[y, a, b] in s {
-            paint(&mut rows[y as usize], a, b, k as u32, dark, &mut uf);
-        }
+    for (a, b) in shared {
+        uf.union(a, b);
     }
-    drop(spans);
     let piece: Vec<u32> = (0..n).map(|i| uf.find(i)).collect();
 
-    // 2.–3. Which film components each piece's pixels fall into.
-    let mut film_of: HashMap<u32, Vec<u32>> = HashMap::new();
+    // 2.–3. Which film components each piece's pixels fall into (indexed by piece root).
+    let mut film_of: Vec<Vec<u32>> = vec![Vec::new(); n as usize];
     for (y, row) in rows.iter().enumerate() {
         for &(a, b, o) in row {
             if let Some(l) = labels.first_in(y, a as usize, b as usize) {
-                let v = film_of.entry(piece[o as usize]).or_default();
+                let v = &mut film_of[piece[o as usize] as usize];
                 if !v.contains(&l) {
                     v.push(l);
                 }
             }
         }
     }
-    let mut pieces_of: HashMap<u32, Vec<u32>> = HashMap::new();
-    for (&p, ls) in &film_of {
+    let mut pieces_in: HashMap<u32, u32> = HashMap::new();
+    for ls in &film_of {
         for &l in ls {
-            pieces_of.entry(l).or_default().push(p);
+            *pieces_in.entry(l).or_default() += 1;
         }
     }
-    pieces_of.retain(|_, v| v.len() >= 2);
-    if pieces_of.is_empty() {
+    // Only pieces sharing a film component with another piece can be joined.
+    let joined: Vec<bool> = film_of
+        .iter()
+        .map(|ls| ls.iter().any(|l| pieces_in[l] >= 2))
+        .collect();
+    if !joined.contains(&true) {
         return Vec::new();
     }
-    let joined: HashMap<u32, Vec<u32>> = film_of
-        .into_iter()
-        .filter(|(_, ls)| ls.iter().any(|l| pieces_of.contains_key(l)))
-        .collect();
-    let shares = |a: u32, b: u32| match (joined.get(&a), joined.get(&b)) {
-        (Some(x), Some(y)) => x.iter().any(|l| y.contains(l)),
-        _ => false,
+    let shares = |a: u32, b: u32| {
+        let y = &film_of[b as usize];
+        film_of[a as usize].iter().any(|l| y.contains(l))
     };
 
     // The growth's reach: a gap up to twice the growth plus a pixel can close.
@@ -262,57 +294,63 @@ pub(super) fn closed_gaps(
     // The nearest pixel pair of every two joined pieces.
     let contacts: HashMap<(u32, u32), Contact> = (0..h)
         .into_par_iter()
-        .map(|y| {
-            let mut best: HashMap<(u32, u32), Contact> = HashMap::new();
-            for &(a, b, o) in &rows[y] {
-                let pa = piece[o as usize];
-                if !joined.contains_key(&pa) {
-                    continue;
-                }
-                let mut edge = vec![a, b - 1];
-                if y > 0 {
-                    edge.extend(uncovered(&rows[y - 1], &piece, pa, a, b));
-                }
-                if y + 1 < h {
-                    edge.extend(uncovered(&rows[y + 1], &piece, pa, a, b));
-                }
-                edge.sort_unstable();
-                edge.dedup();
-                for &x in &edge {
-                    for ny in (y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1) {
-                        let dy = (ny - y as i64) as f64 * area.mm_y;
-                        let near = &rows[ny as usize];
-                        let start = near.partition_point(|q| (q.1 as i64) <= x as i64 - r);
-                        for &(c, d, q) in &near[start..] {
-                            if c as i64 > x as i64 + r {
-                                break;
-                            }
-                            let pb = piece[q as usize];
-                            if pb == pa || !shares(pa, pb) {
-                                continue;
-                            }
-                            let qx = (x.clamp(c, d - 1)) as i64;
-                            let dx = (qx - x as i64) as f64 * area.mm_x;
-                            let d2 = dx * dx + dy * dy;
-                            if d2 > reach2 {
-                                continue;
-                            }
-                            let key = (pa.min(pb), pa.max(pb));
-                            let (p1, p2) = if pa < pb {
-                                ((x, y as u32), (qx as u32, ny as u32))
-                            } else {
-                                ((qx as u32, ny as u32), (x, y as u32))
-                            };
-                            let e = best.entry(key).or_insert((f64::INFINITY, p1, p2));
-                            if d2 < e.0 {
-                                *e = (d2, p1, p2);
+        .fold(
+            || (HashMap::new(), Vec::new()),
+            |(mut best, mut edge): (HashMap<(u32, u32), Contact>, Vec<u32>), y| {
+                for &(a, b, o) in &rows[y] {
+                    let pa = piece[o as usize];
+                    if !joined[pa as usize] {
+                        continue;
+                    }
+                    // The piece's edge pixels in this run: its ends, and what no run of the
+                    // same piece covers above or below.
+                    edge.clear();
+                    edge.extend([a, b - 1]);
+                    if y > 0 {
+                        uncovered(&rows[y - 1], &piece, pa, a, b, &mut edge);
+                    }
+                    if y + 1 < h {
+                        uncovered(&rows[y + 1], &piece, pa, a, b, &mut edge);
+                    }
+                    edge.sort_unstable();
+                    edge.dedup();
+                    for &x in &edge {
+                        for ny in (y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1) {
+                            let dy = (ny - y as i64) as f64 * area.mm_y;
+                            let near = &rows[ny as usize];
+                            let start = near.partition_point(|q| (q.1 as i64) <= x as i64 - r);
+                            for &(c, d, q) in &near[start..] {
+                                if c as i64 > x as i64 + r {
+                                    break;
+                                }
+                                let pb = piece[q as usize];
+                                if pb == pa || !joined[pb as usize] || !shares(pa, pb) {
+                                    continue;
+                                }
+                                let qx = (x.clamp(c, d - 1)) as i64;
+                                let dx = (qx - x as i64) as f64 * area.mm_x;
+                                let d2 = dx * dx + dy * dy;
+                                if d2 > reach2 {
+                                    continue;
+                                }
+                                let key = (pa.min(pb), pa.max(pb));
+                                let (p1, p2) = if pa < pb {
+                                    ((x, y as u32), (qx as u32, ny as u32))
+                                } else {
+                                    ((qx as u32, ny as u32), (x, y as u32))
+                                };
+                                let e = best.entry(key).or_insert((f64::INFINITY, p1, p2));
+                                if d2 < e.0 {
+                                    *e = (d2, p1, p2);
+                                }
                             }
                         }
                     }
                 }
-            }
-            best
-        })
+                (best, edge)
+            },
+        )
+        .map(|(best, _)| best)
         .reduce(HashMap::new, |mut a, b| {
             for (k, v) in b {
                 let e = a.entry(k).or_insert(v);
@@ -496,14 +534,14 @@ mod tests {
 
     #[test]
     fn painting_joins_overlapping_objects_only() {
-        let mut uf = Uf((0..3).collect());
+        let mut shared = Vec::new();
         let mut row: Row = Vec::new();
-        paint(&mut row, 0, 10, 0, true, &mut uf);
-        paint(&mut row, 10, 20, 1, true, &mut uf); // adjacent: not joined
-        paint(&mut row, 18, 30, 2, true, &mut uf); // overlaps 1
-        assert_ne!(uf.find(0), uf.find(1));
-        assert_eq!(uf.find(1), uf.find(2));
-        paint(&mut row, 5, 25, 0, false, &mut uf);
+        paint(&mut row, 0, 10, 0, true, &mut shared);
+        paint(&mut row, 10, 20, 1, true, &mut shared); // adjacent: not joined
+        paint(&mut row, 18, 30, 2, true, &mut shared); // overlaps 1
+        assert_eq!(shared, vec![(2, 1)]);
+        paint(&mut row, 5, 25, 0, false, &mut shared);
         assert_eq!(row, vec![(0, 5, 0), (25, 30, 2)]);
+        assert_eq!(shared.len(), 1, "erasing joins nothing");
     }
 }

@@ -159,3 +159,47 @@ fn paint_band(
         }
     }
 }
+
+/// Objects prepared for row queries one at a time: each object's own pixel spans, not the
+/// painted film. For the process check, which compares the drawn pieces of a layer with the
+/// film (`crate::check`); it needs the pixels every object covers under the same pixel-centre
+/// rule as [`render`], without a bitmap per object.
+pub(crate) struct ObjectRows {
+    grid: super::device::Grid,
+    /// Per object (drawing order); `None` when it can paint nothing on the map.
+    prepared: Vec<Option<Prepared>>,
+}
+
+/// Reusable working memory of [`ObjectRows::spans`] (one per thread).
+#[derive(Default)]
+pub(crate) struct SpanScratch(Scratch);
+
+impl ObjectRows {
+    /// Prepares every object for `map` (in parallel).
+    pub(crate) fn new(objects: &[Object], map: &DeviceMap) -> ObjectRows {
+        ObjectRows {
+            grid: map.grid(),
+            prepared: objects.par_iter().map(|o| prepare_object(o, map)).collect(),
+        }
+    }
+
+    /// Rows `first..end` of the map that may hold pixels of object `i`, and whether it is
+    /// dark; `None` when it paints nothing.
+    pub(crate) fn rows(&self, i: usize) -> Option<((usize, usize), bool)> {
+        self.prepared.get(i)?.as_ref().map(|p| (p.rows, p.dark))
+    }
+
+    /// The spans `[x0, x1)` of object `i` on `row`, in the map's *unmirrored* columns
+    /// (sorted, disjoint, within the map). Empty outside [`Self::rows`].
+    pub(crate) fn spans(&self, i: usize, row: usize, work: &mut SpanScratch, out: &mut Vec<Span>) {
+        out.clear();
+        let Some(Some(p)) = self.prepared.get(i) else {
+            return;
+        };
+        if row < p.rows.0 || row >= p.rows.1 {
+            return;
+        }
+        let y = self.grid.row_center_y(row);
+        shapes::node_spans(&p.node, &self.grid, row, y, &mut work.0, out);
+    }
+}

@@ -98,7 +98,7 @@ fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
             }
         }
     }
-    let bands: Vec<(Vec<Row>, Vec<(u32, u32)>)> = lists
+    let bands: Vec<Design> = lists
         .par_iter()
         .enumerate()
         .map(|(b, list)| {
@@ -130,16 +130,16 @@ fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
                     }
                 }
             }
-            (rows, overlaps)
+            Design { rows, overlaps }
         })
         .collect();
     let mut design = Design {
         rows: Vec::with_capacity(h),
         overlaps: Vec::new(),
     };
-    for (rows, overlaps) in bands {
-        design.rows.extend(rows);
-        design.overlaps.extend(overlaps);
+    for band in bands {
+        design.rows.extend(band.rows);
+        design.overlaps.extend(band.overlaps);
     }
     design
 }

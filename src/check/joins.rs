@@ -66,6 +66,32 @@ impl Uf {
 /// Crop rows per band of the design painting (bands are painted in parallel).
 const BAND_ROWS: usize = 64;
 
+/// Pairs of objects that share a pixel, each noted once in a while: a small table of the
+/// pairs seen lately keeps the same pair, met row after row, from being listed each time.
+struct Overlaps {
+    pairs: Vec<(u32, u32)>,
+    recent: Vec<(u32, u32)>,
+}
+
+impl Overlaps {
+    const RECENT: usize = 1024;
+
+    fn new() -> Overlaps {
+        Overlaps {
+            pairs: Vec::new(),
+            recent: vec![(u32::MAX, u32::MAX); Self::RECENT],
+        }
+    }
+
+    fn note(&mut self, k: u32, j: u32) {
+        let slot = (k.wrapping_mul(0x9E37_79B1) ^ j) as usize % Self::RECENT;
+        if self.recent[slot] != (k, j) {
+            self.recent[slot] = (k, j);
+            self.pairs.push((k, j));
+        }
+    }
+}
+
 /// The design's runs: per crop row, the runs that remember which object painted them last,
 /// and the pairs of objects that share a pixel (overlap in the design).
 struct Design {
@@ -104,16 +130,20 @@ fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
         .map(|(b, list)| {
             let (y0, y1) = (b * BAND_ROWS, ((b + 1) * BAND_ROWS).min(h));
             let mut rows: Vec<Row> = vec![Vec::new(); y1 - y0];
-            let mut overlaps = Vec::new();
+            let mut overlaps = Overlaps::new();
             let mut work = SpanScratch::default();
             let mut spans = Vec::new();
-            for &k in list {
-                let Some(((r0, r1), dark)) = source.rows(k as usize) else {
-                    continue;
-                };
-                for y in r0.max(area.y0 + y0)..r1.min(area.y0 + y1) {
+            // Row by row, so that the row being painted stays in the cache.
+            for y in area.y0 + y0..area.y0 + y1 {
+                let row = &mut rows[y - area.y0 - y0];
+                for &k in list {
+                    let Some(((r0, r1), dark)) = source.rows(k as usize) else {
+                        continue;
+                    };
+                    if y < r0 || y >= r1 {
+                        continue;
+                    }
                     source.spans(k as usize, y, &mut work, &mut spans);
-                    let row = &mut rows[y - area.y0 - y0];
                     for &(a, c) in &spans {
                         let (a, c) = (a.max(ux0), c.min(ux1));
                         if a >= c {
@@ -130,7 +160,10 @@ fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
                     }
                 }
             }
-            Design { rows, overlaps }
+            Design {
+                rows,
+                overlaps: overlaps.pairs,
+            }
         })
         .collect();
     let mut design = Design {
@@ -146,19 +179,18 @@ fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
 
 /// Paints `[a, b)` of object `k` into `row` (erases when `!dark`), noting in `overlaps` every
 /// object whose pixels it covers.
-fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, overlaps: &mut Vec<(u32, u32)>) {
+fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, overlaps: &mut Overlaps) {
     // Runs are sorted and disjoint: the ones overlapping [a, b) are one block.
     let i0 = row.partition_point(|r| r.1 <= a);
-    let i1 = row.partition_point(|r| r.0 < b).max(i0);
+    let i1 = i0 + row[i0..].iter().take_while(|r| r.0 < b).count();
     let mut mid = [(0, 0, 0); 3];
     let mut m = 0;
     if i0 < i1 {
         let (first, last) = (row[i0], row[i1 - 1]);
         if dark {
             for r in &row[i0..i1] {
-                // The same pair comes up row after row: note it once in a stretch.
-                if r.2 != k && overlaps.last() != Some(&(k, r.2)) {
-                    overlaps.push((k, r.2));
+                if r.2 != k {
+                    overlaps.note(k, r.2);
                 }
             }
         }
@@ -261,19 +293,35 @@ pub(super) fn closed_gaps(
             }
         }
     }
-    let mut pieces_in: HashMap<u32, u32> = HashMap::new();
-    for ls in &film_of {
+    // Only pieces sharing a film component with another piece can be joined.
+    let mut pieces_in: HashMap<u32, Vec<u32>> = HashMap::new();
+    for (p, ls) in film_of.iter().enumerate() {
         for &l in ls {
-            *pieces_in.entry(l).or_default() += 1;
+            pieces_in.entry(l).or_default().push(p as u32);
         }
     }
-    // Only pieces sharing a film component with another piece can be joined.
-    let joined: Vec<bool> = film_of
-        .iter()
-        .map(|ls| ls.iter().any(|l| pieces_in[l] >= 2))
-        .collect();
-    if !joined.contains(&true) {
+    pieces_in.retain(|_, v| v.len() >= 2);
+    if pieces_in.is_empty() {
         return Vec::new();
+    }
+    // The nearest pixels of two pieces are found from either side: search from the piece
+    // with fewer runs (a pour joined to one track is never walked along). `rank` orders
+    // the pieces by size; a piece searches for joined pieces of higher rank.
+    let mut run_count = vec![0u32; n as usize];
+    for row in &rows {
+        for &(_, _, o) in row {
+            run_count[piece[o as usize] as usize] += 1;
+        }
+    }
+    let rank = |p: u32| (run_count[p as usize], p);
+    let mut joined = vec![false; n as usize];
+    let mut searches = vec![false; n as usize];
+    for ps in pieces_in.values() {
+        let top = ps.iter().copied().max_by_key(|&p| rank(p));
+        for &p in ps {
+            joined[p as usize] = true;
+            searches[p as usize] |= Some(p) != top;
+        }
     }
     let shares = |a: u32, b: u32| {
         let y = &film_of[b as usize];
@@ -299,7 +347,25 @@ pub(super) fn closed_gaps(
             |(mut best, mut edge): (HashMap<(u32, u32), Contact>, Vec<u32>), y| {
                 for &(a, b, o) in &rows[y] {
                     let pa = piece[o as usize];
-                    if !joined[pa as usize] {
+                    if !searches[pa as usize] {
+                        continue;
+                    }
+                    // Most runs of a joined piece have no other joined piece within reach:
+                    // skip them before looking at their pixels one by one.
+                    let (lo, hi) = (a as i64 - r, b as i64 - 1 + r);
+                    let other_near = ((y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1))
+                        .any(|ny| {
+                            let near = &rows[ny as usize];
+                            let start = near.partition_point(|q| (q.1 as i64) <= lo);
+                            near[start..]
+                                .iter()
+                                .take_while(|q| q.0 as i64 <= hi)
+                                .any(|q| {
+                                    let pb = piece[q.2 as usize];
+                                    joined[pb as usize] && rank(pb) > rank(pa)
+                                })
+                        });
+                    if !other_near {
                         continue;
                     }
                     // The piece's edge pixels in this run: its ends, and what no run of the
@@ -324,7 +390,7 @@ pub(super) fn closed_gaps(
                                     break;
                                 }
                                 let pb = piece[q as usize];
-                                if pb == pa || !joined[pb as usize] || !shares(pa, pb) {
+                                if !joined[pb as usize] || rank(pb) <= rank(pa) || !shares(pa, pb) {
                                     continue;
                                 }
                                 let qx = (x.clamp(c, d - 1)) as i64;
@@ -534,14 +600,14 @@ mod tests {
 
     #[test]
     fn painting_joins_overlapping_objects_only() {
-        let mut shared = Vec::new();
+        let mut shared = Overlaps::new();
         let mut row: Row = Vec::new();
         paint(&mut row, 0, 10, 0, true, &mut shared);
         paint(&mut row, 10, 20, 1, true, &mut shared); // adjacent: not joined
         paint(&mut row, 18, 30, 2, true, &mut shared); // overlaps 1
-        assert_eq!(shared, vec![(2, 1)]);
+        assert_eq!(shared.pairs, vec![(2, 1)]);
         paint(&mut row, 5, 25, 0, false, &mut shared);
         assert_eq!(row, vec![(0, 5, 0), (25, 30, 2)]);
-        assert_eq!(shared.len(), 1, "erasing joins nothing");
+        assert_eq!(shared.pairs.len(), 1, "erasing joins nothing");
     }
 }

@@ -256,3 +256,34 @@ fn sharp_convex_corners_of_a_wide_pour_are_not_thin_copper() {
         assert!(k.findings.is_empty(), "{dpi} dpi: {:#?}", k.findings);
     }
 }
+
+#[test]
+fn a_stub_drawn_at_the_limit_is_not_thin_copper_at_any_angle() {
+    // 0.2 mm spurs (the default limit, §4.4.2 circle aperture as the pen) leave 1.5 mm square
+    // pads and end in nothing: along x, and at 45°, where the width measurement is accurate
+    // within a pixel (docs/check.md) and reads up to a pixel low. Drawn at the limit, they are
+    // not defects; a 0.12 mm spur at 45° beside them is.
+    let body = format!(
+        "D10*\n{}{}{}D11*\n{}{}D12*\n{}",
+        flash(3.0, 5.0),
+        flash(3.0, 10.0),
+        flash(3.0, 15.0),
+        line((3.0, 5.0), (6.0, 5.0)),
+        line((3.0, 10.0), (5.5, 12.5)),
+        line((3.0, 15.0), (5.5, 17.5)),
+    );
+    let img = gerber("%ADD10R,1.5X1.5*%\n%ADD11C,0.2*%\n%ADD12C,0.12*%\n", &body);
+    for dpi in DPIS {
+        let k = check_copper(
+            &img,
+            None,
+            board(12.0, 20.0),
+            &recipe(dpi, DrillMarkStyle::None, false, 0.0),
+            &ProcessLimits::default(),
+        );
+        let thin = of_kind(&k.findings, FindingKind::ThinCopper);
+        assert_eq!(thin.len(), 1, "{dpi} dpi: {:#?}", k.findings);
+        // The 0.12 mm spur runs from (3.75, 15.75) to (5.5, 17.5) beyond its pad.
+        assert!(thin[0].at_mm.y > 15.5, "{dpi} dpi: at {:?}", thin[0].at_mm);
+    }
+}

@@ -325,6 +325,10 @@ fn thin_parts(
 /// 1.5 pixels or a third of the width), and it runs longer than the limit (area ÷ width). A
 /// corner's residue is short, most of its pixels are not thin across at all, and a sharp
 /// tip's widths run evenly from nothing to the limit.
+///
+/// A stub or loop cuts no connection when it etches away, and a slanted feature measures up
+/// to a pixel low (`measure.rs`): one drawn at the limit must not be reported, so a stub has
+/// to measure more than a whole pixel below the limit (bridges keep the half-pixel slack).
 fn is_stub(
     sorted_widths: &[f64],
     sampled: usize,
@@ -339,7 +343,9 @@ fn is_stub(
     }
     let spread = sorted_widths[3 * (n - 1) / 4] - sorted_widths[(n - 1) / 4];
     let length = pixels as f64 * area.mm_x * area.mm_y / width;
-    spread <= (1.5 * area.pixel_mm()).max(width / 3.0) && length >= min_mm
+    spread <= (1.5 * area.pixel_mm()).max(width / 3.0)
+        && length >= min_mm
+        && width < min_mm - area.pixel_mm()
 }
 
 /// The component's centroid if a pixel of it is within a pixel of there, else the centre of

@@ -203,3 +203,44 @@ impl ObjectRows {
         shapes::node_spans(&p.node, &self.grid, row, y, &mut work.0, out);
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::image::{Point, Shape};
+
+    #[test]
+    fn object_spans_are_the_pixel_centres_inside_the_disc() {
+        // A disc of radius 1 mm on a 254 dpi grid (0.1 mm pixels, origin at 0): pixel (i, j)
+        // is dark when its centre lies strictly inside, (x − cx)² + (y − cy)² < r² (the
+        // circle's equation, elementary geometry); the film rendered by `render` agrees.
+        let map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
+        let disc = Object {
+            polarity: Polarity::Dark,
+            shape: Shape::Disc {
+                center: Point::new(2.03, 1.47),
+                diameter: 2.0,
+            },
+        };
+        let rows = ObjectRows::new(std::slice::from_ref(&disc), &map);
+        let film = render_with(std::slice::from_ref(&disc), &map, &RenderOptions::serial());
+        let (mut work, mut spans) = (SpanScratch::default(), Vec::new());
+        let mut dark = 0;
+        for j in 0..map.height {
+            rows.spans(0, j, &mut work, &mut spans);
+            let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
+            for i in 0..map.width {
+                let x = 0.1 * (i as f64 + 0.5);
+                let inside = (x - 2.03).powi(2) + (y - 1.47).powi(2) < 1.0;
+                let in_spans = spans.iter().any(|&(a, b)| a <= i && i < b);
+                assert_eq!(in_spans, inside, "pixel ({i}, {j})");
+                assert_eq!(film.get(i, j), inside, "film pixel ({i}, {j})");
+                dark += inside as usize;
+            }
+        }
+        // About π r² / (0.1 mm)² = 314 pixels.
+        assert!((290..340).contains(&dark), "{dark}");
+        assert_eq!(rows.rows(0).map(|r| r.1), Some(true));
+        assert!(rows.rows(1).is_none());
+    }
+}

@@ -168,7 +168,9 @@ pub(crate) struct Labels {
     rows: Vec<Vec<(u32, u32, u32)>>,
 }
 
-fn row_runs(row: &[u64], out: &mut Vec<(u32, u32)>) {
+/// The runs `[x0, x1)` of set pixels in one bitmap row (may end in the padding bits' column,
+/// which are always clear).
+pub(crate) fn row_runs(row: &[u64], out: &mut Vec<(u32, u32)>) {
     out.clear();
     let mut open: Option<usize> = None;
     for (wi, &w) in row.iter().enumerate() {
@@ -256,6 +258,13 @@ impl Labels {
         let row = self.rows.get(y)?;
         let i = row.partition_point(|r| (r.1 as usize) <= x);
         row.get(i).filter(|r| (r.0 as usize) <= x).map(|r| r.2)
+    }
+
+    /// The label of the first set pixel among columns `x0..x1` of row `y`, if any.
+    pub fn first_in(&self, y: usize, x0: usize, x1: usize) -> Option<u32> {
+        let row = self.rows.get(y)?;
+        let i = row.partition_point(|r| (r.1 as usize) <= x0);
+        row.get(i).filter(|r| (r.0 as usize) < x1).map(|r| r.2)
     }
 
     /// How many different labels (up to `max`) the edge neighbours of `comp`'s pixels carry.

@@ -20,6 +20,7 @@
 
 mod area;
 pub mod cli;
+mod joins;
 mod measure;
 mod objects;
 mod report;
@@ -105,6 +106,9 @@ pub enum FindingKind {
     CopperVanishes,
     /// A drawn clearance that leaves no clear pixel on the film.
     GapCloses,
+    /// Copper pieces separate in the design are one piece on the film: the gap between them
+    /// closed entirely (narrower than a pixel, or filled by the edge growth).
+    CopperJoined,
     /// Less copper ring around a hole than the minimum.
     ThinRing,
     /// A solder-mask web between openings narrower than the minimum.
@@ -232,7 +236,8 @@ fn disc_radius_um(min_mm: f64, mm_x: f64, mm_y: f64) -> f64 {
 enum Keep<'a> {
     /// Thin copper: parts that join two or more pieces of well-formed copper (a neck, a thin
     /// track between pads) or none at all (an island that the etch removes). A part touching
-    /// one piece only is the tip of a spike or a corner: nothing is cut off if it etches away.
+    /// one piece only is kept when it is a stub or a loop ([`is_stub`]), not the rounded
+    /// corner or tip of wide copper.
     Bridges,
     /// Gaps and mask webs: parts whose two sides belong to different pieces of the other
     /// material (given with its labels). A wedge between a track and the pad it joins has
@@ -276,15 +281,19 @@ fn thin_parts(
     comps
         .par_iter()
         .filter_map(|c| {
-            let wanted = match (&keep, &opened_labels) {
-                (Keep::Separates(l), _) => l.touching(c, 2) >= 2,
-                (Keep::Bridges, Some(l)) => l.touching(c, 2) != 1,
-                (Keep::Bridges, None) => true,
+            let (wanted, dangling) = match (&keep, &opened_labels) {
+                (Keep::Separates(l), _) => (l.touching(c, 2) >= 2, false),
+                (Keep::Bridges, Some(l)) => {
+                    let one = l.touching(c, 2) == 1;
+                    (!one, one)
+                }
+                (Keep::Bridges, None) => (true, false),
             };
-            if !wanted {
+            if !wanted && !dangling {
                 return None;
             }
             let stride = (c.pixels.len() / SAMPLES_PER_COMPONENT).max(1);
+            let sampled = c.pixels.len().div_ceil(stride);
             let mut widths: Vec<f64> = c
                 .pixels
                 .iter()
@@ -298,6 +307,9 @@ fn thin_parts(
             // which says nothing about the track's width.
             widths.sort_by(f64::total_cmp);
             let width = widths[(widths.len() - 1) * WIDTH_PERCENTILE / 100];
+            if dangling && !is_stub(&widths, sampled, c.pixels.len(), width, area, min_mm) {
+                return None;
+            }
             Some(Thin {
                 at: on_part(c),
                 bbox: c.bbox(),
@@ -305,6 +317,35 @@ fn thin_parts(
             })
         })
         .collect()
+}
+
+/// Whether residue touching one piece of copper only is a thin stub or loop (reported) rather
+/// than the rounded corner or tip of wide copper (not reported). A stub or loop is thin along
+/// its length: nearly every sample measures, the widths agree (the middle half of them within
+/// 1.5 pixels or a third of the width), and it runs longer than the limit (area ÷ width). A
+/// corner's residue is short, most of its pixels are not thin across at all, and a sharp
+/// tip's widths run evenly from nothing to the limit.
+///
+/// A stub or loop cuts no connection when it etches away, and a slanted feature measures up
+/// to a pixel low (`measure.rs`): one drawn at the limit must not be reported, so a stub has
+/// to measure more than a whole pixel below the limit (bridges keep the half-pixel slack).
+fn is_stub(
+    sorted_widths: &[f64],
+    sampled: usize,
+    pixels: usize,
+    width: f64,
+    area: &Area,
+    min_mm: f64,
+) -> bool {
+    let n = sorted_widths.len();
+    if width <= 0.0 || 4 * n < 3 * sampled {
+        return false;
+    }
+    let spread = sorted_widths[3 * (n - 1) / 4] - sorted_widths[(n - 1) / 4];
+    let length = pixels as f64 * area.mm_x * area.mm_y / width;
+    spread <= (1.5 * area.pixel_mm()).max(width / 3.0)
+        && length >= min_mm
+        && width < min_mm - area.pixel_mm()
 }
 
 /// The component's centroid if a pixel of it is within a pixel of there, else the centre of
@@ -475,27 +516,32 @@ pub fn check_film(
             check.copper_percent = (box_mm2 > 0.0).then(|| 100.0 * area_mm2 / box_mm2);
             check.measured_below_mm = limits.min_copper_width_mm.min(limits.min_gap_mm);
             let holes = hole_sites(input);
-            let (copper, gaps) = rayon::join(
+            let labels = Labels::of(&material);
+            let ((copper, gaps), joined) = rayon::join(
                 || {
-                    thin_parts(
-                        &material,
-                        false,
-                        &area,
-                        limits.min_copper_width_mm,
-                        Keep::Bridges,
+                    rayon::join(
+                        || {
+                            thin_parts(
+                                &material,
+                                false,
+                                &area,
+                                limits.min_copper_width_mm,
+                                Keep::Bridges,
+                            )
+                        },
+                        || {
+                            let gap = inverted(&material);
+                            thin_parts(
+                                &gap,
+                                true,
+                                &area,
+                                limits.min_gap_mm,
+                                Keep::Separates(&labels),
+                            )
+                        },
                     )
                 },
-                || {
-                    let labels = Labels::of(&material);
-                    let gap = inverted(&material);
-                    thin_parts(
-                        &gap,
-                        true,
-                        &area,
-                        limits.min_gap_mm,
-                        Keep::Separates(&labels),
-                    )
-                },
+                || joins::closed_gaps(input, &material, &labels, &area, limits.min_gap_mm),
             );
             let copper = merge(copper, gap_px);
             // Drill-centre marks are intended holes in the copper, not gaps.
@@ -577,7 +623,17 @@ pub fn check_film(
                 .partition(|f| f.kind == FindingKind::CopperVanishes);
             copper_gone.truncate(MAX_LISTED * 4);
             gap_gone.truncate(MAX_LISTED * 4);
-            lists.extend([thin, narrow, copper_gone, gap_gone, rings]);
+            // A lost clearance is reported once, as such, not also as the copper it joins.
+            let joined: Vec<Finding> = joined
+                .into_iter()
+                .filter(|j| {
+                    !gap_gone.iter().any(|g| {
+                        let r = 0.5 * g.extent_mm[0].hypot(g.extent_mm[1]) + area.pixel_mm();
+                        g.at_mm.dist(j.at_mm) <= r
+                    })
+                })
+                .collect();
+            lists.extend([thin, narrow, copper_gone, gap_gone, joined, rings]);
         }
         LayerFunction::SolderMask => {
             check.measured_below_mm = limits.min_mask_web_mm;

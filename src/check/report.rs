@@ -9,6 +9,7 @@ pub fn kind_words(kind: FindingKind) -> &'static str {
         FindingKind::NarrowGap => "gap too narrow",
         FindingKind::CopperVanishes => "copper lost on film",
         FindingKind::GapCloses => "clearance lost on film",
+        FindingKind::CopperJoined => "gap closed on film",
         FindingKind::ThinRing => "annular ring too small",
         FindingKind::ThinMaskWeb => "mask web too narrow",
     }
@@ -33,6 +34,12 @@ pub fn kind_advice(kind: FindingKind) -> &'static str {
         FindingKind::GapCloses => {
             "a drawn clearance is finer than the film can show (or the compensation fills it): \
              widen it in the design or print at a higher resolution"
+        }
+        FindingKind::CopperJoined => {
+            "two separately drawn pieces of copper come so close (the design gap is in the \
+             'measured' column) that the film joins them and the board will short them: move \
+             them apart in the design, print at a higher resolution, or, if the edge growth \
+             closes it, lower exposure_spread_um and the copper extra_um"
         }
         FindingKind::ThinRing => {
             "use a larger pad or a smaller drill; where the drill-centre mark is larger than the \

@@ -126,9 +126,8 @@ fn ring_warnings(job: &FilmJob<'_>, min_annular_ring_mm: f64) -> Vec<String> {
         ..job.clone()
     };
     compose::render_film(&proof, min_annular_ring_mm)
-        .warnings
+        .ring_warning
         .into_iter()
-        .filter(|w| w.contains("annular ring"))
         .collect()
 }
 

@@ -256,7 +256,22 @@ pub struct RenderedFilm {
     pub realized: RealizedOffset,
     /// Holes whose drill mark or hole leaves less copper ring than the minimum: (centre, ring mm).
     pub thin_rings: Vec<(Point, f64)>,
+    /// Every warning of the render, the annular-ring warning (if any) included.
     pub warnings: Vec<String>,
+    /// The annular-ring warning alone (also in `warnings`). The process check
+    /// (`crate::check`) measures rings on the finished film against `[limits]` and is the one
+    /// source of ring findings wherever it runs; see [`RenderedFilm::warnings_beside_check`].
+    pub ring_warning: Option<String>,
+}
+
+impl RenderedFilm {
+    /// The warnings for a run whose films also go through the process check: all but the
+    /// annular-ring warning, which the check reports (with the mark and the hole) instead.
+    pub fn warnings_beside_check(&self) -> impl Iterator<Item = &String> {
+        self.warnings
+            .iter()
+            .filter(move |w| self.ring_warning.as_ref() != Some(*w))
+    }
 }
 
 /// The device map of a film: the frame's film area at the recipe's resolution, with the
@@ -388,6 +403,7 @@ pub fn render_film_on(
 
     // 2. Drill-centre marks, after checking the copper ring each leaves.
     let mut thin_rings = Vec::new();
+    let mut ring_warning = None;
     if recipe.drill_marks != DrillMarkStyle::None && !job.drills.is_empty() {
         // No ring check without the whole film around the holes (see render_film_on).
         let checked = match min_annular_ring_mm {
@@ -412,7 +428,7 @@ pub fn render_film_on(
         let dots = render(&objects(dots, Polarity::Dark), &map);
         combine(&mut material, &dots, true);
         if !thin_rings.is_empty() {
-            warnings.push(format!(
+            ring_warning = Some(format!(
                 "{} hole(s) would keep less than the {:.2} mm minimum annular ring (smallest {:.3} mm at {:.2}, {:.2} mm)",
                 thin_rings.len(),
                 min_annular_ring_mm,
@@ -420,6 +436,7 @@ pub fn render_film_on(
                 thin_rings[0].0.x,
                 thin_rings[0].0.y
             ));
+            warnings.extend(ring_warning.clone());
         }
     }
 
@@ -456,6 +473,7 @@ pub fn render_film_on(
         realized,
         thin_rings,
         warnings,
+        ring_warning,
     }
 }
 

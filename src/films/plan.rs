@@ -196,10 +196,10 @@ pub fn make_films(
         }
         let rendered =
             compose::render_film(&plan.job(i), plan.profile.drill_marks.min_annular_ring_mm);
+        // Both callers run the process check, which reports thin rings itself.
         warnings.extend(
             rendered
-                .warnings
-                .iter()
+                .warnings_beside_check()
                 .map(|w| format!("{}: {w}", s.title)),
         );
         made.push(MadeFilm {

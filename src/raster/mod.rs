@@ -18,3 +18,4 @@ mod spans;
 pub use bitmap::Bitmap;
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
 pub use render::{render, render_with, RenderOptions};
+pub(crate) use render::{ObjectRows, SpanScratch};

@@ -159,3 +159,88 @@ fn paint_band(
         }
     }
 }
+
+/// Objects prepared for row queries one at a time: each object's own pixel spans, not the
+/// painted film. For the process check, which compares the drawn pieces of a layer with the
+/// film (`crate::check`); it needs the pixels every object covers under the same pixel-centre
+/// rule as [`render`], without a bitmap per object.
+pub(crate) struct ObjectRows {
+    grid: super::device::Grid,
+    /// Per object (drawing order); `None` when it can paint nothing on the map.
+    prepared: Vec<Option<Prepared>>,
+}
+
+/// Reusable working memory of [`ObjectRows::spans`] (one per thread).
+#[derive(Default)]
+pub(crate) struct SpanScratch(Scratch);
+
+impl ObjectRows {
+    /// Prepares every object for `map` (in parallel).
+    pub(crate) fn new(objects: &[Object], map: &DeviceMap) -> ObjectRows {
+        ObjectRows {
+            grid: map.grid(),
+            prepared: objects.par_iter().map(|o| prepare_object(o, map)).collect(),
+        }
+    }
+
+    /// Rows `first..end` of the map that may hold pixels of object `i`, and whether it is
+    /// dark; `None` when it paints nothing.
+    pub(crate) fn rows(&self, i: usize) -> Option<((usize, usize), bool)> {
+        self.prepared.get(i)?.as_ref().map(|p| (p.rows, p.dark))
+    }
+
+    /// The spans `[x0, x1)` of object `i` on `row`, in the map's *unmirrored* columns
+    /// (sorted, disjoint, within the map). Empty outside [`Self::rows`].
+    pub(crate) fn spans(&self, i: usize, row: usize, work: &mut SpanScratch, out: &mut Vec<Span>) {
+        out.clear();
+        let Some(Some(p)) = self.prepared.get(i) else {
+            return;
+        };
+        if row < p.rows.0 || row >= p.rows.1 {
+            return;
+        }
+        let y = self.grid.row_center_y(row);
+        shapes::node_spans(&p.node, &self.grid, row, y, &mut work.0, out);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::image::{Point, Shape};
+
+    #[test]
+    fn object_spans_are_the_pixel_centres_inside_the_disc() {
+        // A disc of radius 1 mm on a 254 dpi grid (0.1 mm pixels, origin at 0): pixel (i, j)
+        // is dark when its centre lies strictly inside, (x − cx)² + (y − cy)² < r² (the
+        // circle's equation, elementary geometry); the film rendered by `render` agrees.
+        let map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
+        let disc = Object {
+            polarity: Polarity::Dark,
+            shape: Shape::Disc {
+                center: Point::new(2.03, 1.47),
+                diameter: 2.0,
+            },
+        };
+        let rows = ObjectRows::new(std::slice::from_ref(&disc), &map);
+        let film = render_with(std::slice::from_ref(&disc), &map, &RenderOptions::serial());
+        let (mut work, mut spans) = (SpanScratch::default(), Vec::new());
+        let mut dark = 0;
+        for j in 0..map.height {
+            rows.spans(0, j, &mut work, &mut spans);
+            let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
+            for i in 0..map.width {
+                let x = 0.1 * (i as f64 + 0.5);
+                let inside = (x - 2.03).powi(2) + (y - 1.47).powi(2) < 1.0;
+                let in_spans = spans.iter().any(|&(a, b)| a <= i && i < b);
+                assert_eq!(in_spans, inside, "pixel ({i}, {j})");
+                assert_eq!(film.get(i, j), inside, "film pixel ({i}, {j})");
+                dark += inside as usize;
+            }
+        }
+        // About π r² / (0.1 mm)² = 314 pixels.
+        assert!((290..340).contains(&dark), "{dark}");
+        assert_eq!(rows.rows(0).map(|r| r.1), Some(true));
+        assert!(rows.rows(1).is_none());
+    }
+}

@@ -122,6 +122,32 @@ pub fn check_text(r: &CheckReport) -> String {
         ]);
     }
     s.push_str(&table(&rows));
+    // A narrowest value a little under a limit with no finding: say why, or the table looks
+    // as if the check missed it.
+    let under_without_finding = r.films.iter().any(|f| {
+        let limit_of_gap = if f.copper_area_mm2.is_some() {
+            l.min_gap_mm
+        } else {
+            l.min_mask_web_mm
+        };
+        f.findings == 0
+            && (f
+                .smallest_width_mm
+                .is_some_and(|w| w < l.min_copper_width_mm)
+                || f.smallest_gap_mm.is_some_and(|g| g < limit_of_gap))
+    });
+    if under_without_finding {
+        let px = r
+            .films
+            .iter()
+            .map(|f| 25.4 / f.dpi[0].min(f.dpi[1]))
+            .fold(0.0, f64::max);
+        s.push_str(&format!(
+            "(widths are measured on the film's pixels, to within about half a pixel ({:.3} mm here); \
+             a narrowest value that close to its limit is not reported)\n",
+            px / 2.0
+        ));
+    }
     if r.findings.is_empty() {
         s.push_str("\nno findings: the films keep every limit\n");
     } else {
@@ -196,5 +222,43 @@ pub fn check_line(r: &CheckReport) -> String {
             "process check: {n} finding(s) ({}); run `umbra check` for the table",
             words.join(", ")
         )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::check::{FilmCheck, ProcessLimits};
+
+    fn report(gap_mm: f64, findings: usize) -> CheckReport {
+        CheckReport {
+            limits: ProcessLimits::default(),
+            board_mm: [50.0, 40.0],
+            films: vec![FilmCheck {
+                film: "copper-bottom".into(),
+                layer: "copper bottom".into(),
+                dpi: [300.0, 300.0],
+                copper_area_mm2: Some(100.0),
+                copper_percent: Some(5.0),
+                smallest_width_mm: None,
+                smallest_gap_mm: Some(gap_mm),
+                measured_below_mm: 0.3,
+                findings,
+                findings_not_listed: 0,
+            }],
+            findings: Vec::new(),
+            proof: None,
+        }
+    }
+
+    #[test]
+    fn a_narrowest_value_under_the_limit_without_finding_is_explained() {
+        // 300 dpi: a pixel is 25.4 / 300 = 0.0847 mm, half of it 0.042 mm (the international
+        // inch is exactly 25.4 mm). The default gap limit is 0.2 mm (common practice).
+        let text = check_text(&report(0.189, 0));
+        assert!(text.contains("half a pixel (0.042 mm here)"), "{text}");
+        // At or above the limit there is nothing to explain.
+        let text = check_text(&report(0.21, 0));
+        assert!(!text.contains("half a pixel"), "{text}");
     }
 }

@@ -22,9 +22,11 @@
 //! objects that come after it. Each Dark object is therefore cut only by the later Clear
 //! objects whose boxes touch it (found with a grid index), and all the pieces are united in
 //! one overlay at the end: a handful of large operations instead of one per object.
+//! Straight strokes drawn end to end with the same pen and polarity, with nothing between
+//! them in the image, count as one object: their chain's outline ([`super::chain`]).
 
 use super::flatten::{rect_ring, FilmSpace, Flattener};
-use super::{ops, Region, Ring, VectorOptions};
+use super::{chain, ops, Region, Ring, VectorOptions};
 use crate::film::compose::{
     artwork_shapes, drill_mark_shapes, film_map, FilmJob, BOARD_CLIP_MARGIN_MM,
 };
@@ -193,13 +195,19 @@ pub fn compose_film(job: &FilmJob<'_>, opts: &VectorOptions) -> VectorFilm {
     if flip {
         items.extend(item(true, vec![frame.clone()], true));
     }
-    let image: Vec<Option<Item>> = job
-        .image
-        .objects
-        .par_iter()
-        .map(|o| {
+    // Chains of straight strokes become one outline each (`chain` module docs).
+    let objects = &job.image.objects;
+    let image: Vec<Option<Item>> = chain::runs(objects)
+        .into_par_iter()
+        .map(|run| {
+            let o = &objects[run.start];
             let dark = (o.polarity == Polarity::Dark) != flip;
-            item(dark, fl.rings(&o.shape), true)
+            let rings = if run.len() == 1 {
+                fl.rings(&o.shape)
+            } else {
+                fl.chain(&objects[run])
+            };
+            item(dark, rings, true)
         })
         .collect();
     items.extend(image.into_iter().flatten());

@@ -171,7 +171,7 @@ impl Flattener {
     /// meeting at one point, and the pads under them, share vertices instead of crossing
     /// each other's chords at grazing angles: such near-coincident chords multiply the
     /// intersections an overlay must resolve.
-    fn locked_arc(&self, c: Point, r: f64, t0: f64, sweep: f64, out: &mut Vec<Point>) {
+    pub(super) fn locked_arc(&self, c: Point, r: f64, t0: f64, sweep: f64, out: &mut Vec<Point>) {
         let n = chords_for(r, TAU, self.tolerance_mm);
         let step = TAU / n as f64;
         let at = |a: f64| Point::new(c.x + r * a.cos(), c.y + r * a.sin());
@@ -192,7 +192,7 @@ impl Flattener {
     }
 
     /// Maps board points to a film-space ring, counter-clockwise in film space.
-    fn ring(&self, pts: &[Point]) -> Ring {
+    pub(super) fn ring(&self, pts: &[Point]) -> Ring {
         let mut r: Ring = pts.iter().map(|p| self.map(*p)).collect();
         if self.space.reverses() {
             r.reverse();

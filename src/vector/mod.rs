@@ -11,6 +11,7 @@
 //! The booleans and offsets are done by the `i_overlay` crate (see `docs/vector.md` for why
 //! it was chosen over `clipper2`); [`ops`] is the only module that knows it.
 
+pub mod chain;
 pub mod compose;
 pub mod flatten;
 pub mod ops;

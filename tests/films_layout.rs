@@ -3,6 +3,7 @@
 
 mod films_layout_support;
 mod films_support;
+mod poppler;
 
 use films_layout_support::*;
 use films_support::*;

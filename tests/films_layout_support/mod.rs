@@ -274,34 +274,7 @@ pub fn default_rules(dpi: f64) -> SheetRules {
     }
 }
 
-/// A PGM (P5, netpbm) image with 8-bit samples: width, height, samples.
-pub fn read_pgm(bytes: &[u8]) -> (usize, usize, Vec<u8>) {
-    let mut fields = Vec::new();
-    let mut i = 0;
-    while fields.len() < 4 {
-        while bytes[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        if bytes[i] == b'#' {
-            while bytes[i] != b'\n' {
-                i += 1;
-            }
-            continue;
-        }
-        let start = i;
-        while !bytes[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        fields.push(String::from_utf8_lossy(&bytes[start..i]).to_string());
-    }
-    assert_eq!(fields[0], "P5");
-    assert_eq!(fields[3], "255");
-    (
-        fields[1].parse().unwrap(),
-        fields[2].parse().unwrap(),
-        bytes[i + 1..].to_vec(),
-    )
-}
+pub use crate::poppler::read_pgm;
 
 /// How a tile mark looks (docs/sheets.md "Tile alignment marks"; umbra's own design, no
 /// outside source): a tick across its band, 1 mm either side of the band's centre line, with

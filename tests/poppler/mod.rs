@@ -16,13 +16,12 @@ pub fn poppler_tool(name: &str) -> bool {
     found
 }
 
-/// A binary PBM (P4, Netpbm format): "P4", width, height (whitespace-separated, `#` comments
-/// allowed between them), one whitespace byte, then rows packed MSB-first and padded to
-/// whole bytes, 1 = black. Returns (width, height, black per pixel, row-major).
-pub fn read_pbm(bytes: &[u8]) -> (usize, usize, Vec<bool>) {
+/// The header of a binary Netpbm image: `n` whitespace-separated fields (`#` comments allowed
+/// between them) and the offset of the first sample byte, after one whitespace byte.
+fn netpbm_header(bytes: &[u8], n: usize) -> (Vec<String>, usize) {
     let mut fields = Vec::new();
     let mut i = 0;
-    while fields.len() < 3 {
+    while fields.len() < n {
         while bytes[i].is_ascii_whitespace() {
             i += 1;
         }
@@ -38,7 +37,13 @@ pub fn read_pbm(bytes: &[u8]) -> (usize, usize, Vec<bool>) {
         }
         fields.push(String::from_utf8_lossy(&bytes[start..i]).to_string());
     }
-    i += 1;
+    (fields, i + 1)
+}
+
+/// A binary PBM (P4, Netpbm format): "P4", width, height, then rows packed MSB-first and
+/// padded to whole bytes, 1 = black. Returns (width, height, black per pixel, row-major).
+pub fn read_pbm(bytes: &[u8]) -> (usize, usize, Vec<bool>) {
+    let (fields, i) = netpbm_header(bytes, 3);
     assert_eq!(fields[0], "P4");
     let w: usize = fields[1].parse().unwrap();
     let h: usize = fields[2].parse().unwrap();
@@ -51,4 +56,17 @@ pub fn read_pbm(bytes: &[u8]) -> (usize, usize, Vec<bool>) {
         }
     }
     (w, h, black)
+}
+
+/// A binary PGM (P5, Netpbm format) with 8-bit samples: "P5", width, height, maxval 255,
+/// then one byte per pixel. Returns (width, height, samples, row-major).
+pub fn read_pgm(bytes: &[u8]) -> (usize, usize, Vec<u8>) {
+    let (fields, i) = netpbm_header(bytes, 4);
+    assert_eq!(fields[0], "P5");
+    assert_eq!(fields[3], "255");
+    (
+        fields[1].parse().unwrap(),
+        fields[2].parse().unwrap(),
+        bytes[i..].to_vec(),
+    )
 }

@@ -89,7 +89,24 @@ pub(super) fn ring_of(
             (cx - half - 0.5).floor() as i64,
             (cx + half - 0.5).ceil() as i64,
         );
-        for x in x0..=x1 {
+        // Columns a whole pixel inside the hole's edge cannot count (d² < open²): the
+        // row's pixels run in two pieces either side of them.
+        let inner2 = open2 - dy * dy;
+        let ih = if inner2 > 0.0 {
+            inner2.sqrt() / area.mm_x - 1.0
+        } else {
+            -1.0
+        };
+        let (s0, s1) = if ih >= 0.0 {
+            (
+                (cx - 0.5 - ih).ceil() as i64,
+                (cx - 0.5 + ih).floor() as i64,
+            )
+        } else {
+            (x1 + 1, x1)
+        };
+        let (s0, s1) = if s0 <= s1 { (s0, s1) } else { (x1 + 1, x1) };
+        for x in (x0..=x1.min(s0 - 1)).chain((s1 + 1).max(x0)..=x1) {
             let dx = (x as f64 + 0.5 - cx) * area.mm_x;
             let d2 = dx * dx + dy * dy;
             if d2 < open2 || d2 > reach2 {

@@ -41,6 +41,18 @@ fn line(a: (f64, f64), b: (f64, f64)) -> String {
     format!("X{}Y{}D02*\nX{}Y{}D01*\n", c(a.0), c(a.1), c(b.0), c(b.1))
 }
 
+/// `img` checked as a copper film over a `width` × 20 mm board at `dpi` with default limits
+/// and no drill marks; `growth_um` is the edge offset (growth of the copper).
+fn check_at(img: &LayerImage, width: f64, dpi: f64, mirror: bool, growth_um: f64) -> Checked {
+    check_copper(
+        img,
+        None,
+        board(width, 20.0),
+        &recipe(dpi, DrillMarkStyle::None, mirror, growth_um),
+        &ProcessLimits::default(),
+    )
+}
+
 /// Two round pads 1.5 mm across at y = 10, the second `gap` beyond the first's edge.
 fn two_pads(gap: f64) -> (LayerImage, f64) {
     pads_at(4.0, gap)
@@ -64,13 +76,7 @@ fn a_gap_narrower_than_a_pixel_is_found_where_the_pads_come_closest() {
     let gap = 0.015;
     for dpi in DPIS {
         for mirror in [false, true] {
-            let probe = check_copper(
-                &two_pads(1.0).0,
-                None,
-                board(12.0, 20.0),
-                &recipe(dpi, DrillMarkStyle::None, mirror, 0.0),
-                &ProcessLimits::default(),
-            );
+            let probe = check_at(&two_pads(1.0).0, 12.0, dpi, mirror, 0.0);
             let map = probe.film.map;
             let edge = map
                 .to_mm(
@@ -79,13 +85,7 @@ fn a_gap_narrower_than_a_pixel_is_found_where_the_pads_come_closest() {
                 )
                 .x;
             let (img, x_mid) = pads_at(edge - 0.75 - gap / 2.0, gap);
-            let k = check_copper(
-                &img,
-                None,
-                board(12.0, 20.0),
-                &recipe(dpi, DrillMarkStyle::None, mirror, 0.0),
-                &ProcessLimits::default(),
-            );
+            let k = check_at(&img, 12.0, dpi, mirror, 0.0);
             let joined = of_kind(&k.findings, FindingKind::CopperJoined);
             assert_eq!(
                 joined.len(),
@@ -114,13 +114,7 @@ fn a_gap_that_the_edge_growth_fills_is_found_with_the_design_gap() {
     let gap = 0.1;
     let (img, x_mid) = two_pads(gap);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(12.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, true, 80.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 12.0, dpi, true, 80.0);
         let joined = of_kind(&k.findings, FindingKind::CopperJoined);
         assert_eq!(joined.len(), 1, "{dpi} dpi: {:#?}", k.findings);
         let f = joined[0];
@@ -132,13 +126,7 @@ fn a_gap_that_the_edge_growth_fills_is_found_with_the_design_gap() {
         );
         assert!((f.width_mm - gap).abs() < 1e-3, "{dpi} dpi: {}", f.width_mm);
         // Without the growth the same pads keep their gap open: no join.
-        let k0 = check_copper(
-            &img,
-            None,
-            board(12.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, true, 0.0),
-            &ProcessLimits::default(),
-        );
+        let k0 = check_at(&img, 12.0, dpi, true, 0.0);
         assert!(of_kind(&k0.findings, FindingKind::CopperJoined).is_empty());
     }
 }
@@ -156,13 +144,7 @@ fn copper_joined_on_purpose_is_not_a_finding() {
     );
     let img = gerber("%ADD10C,1.5*%\n%ADD11C,0.3*%\n", &body);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(14.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, false, 80.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 14.0, dpi, false, 80.0);
         assert!(k.findings.is_empty(), "{dpi} dpi: {:#?}", k.findings);
     }
 }
@@ -177,13 +159,7 @@ fn a_dangling_thin_stub_is_found() {
     );
     let img = gerber("%ADD10R,1.5X1.5*%\n%ADD11C,0.08*%\n", &body);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(12.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, false, 0.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 12.0, dpi, false, 0.0);
         let thin = of_kind(&k.findings, FindingKind::ThinCopper);
         assert_eq!(thin.len(), 1, "{dpi} dpi: {:#?}", k.findings);
         let f = thin[0];
@@ -210,13 +186,7 @@ fn a_thin_loop_back_to_the_same_pad_is_found() {
     );
     let img = gerber("%ADD10R,2X2*%\n%ADD11C,0.1*%\n", &body);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(12.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, false, 0.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 12.0, dpi, false, 0.0);
         let thin = of_kind(&k.findings, FindingKind::ThinCopper);
         assert!(!thin.is_empty(), "{dpi} dpi: {:#?}", k.findings);
         let px = pixel_mm(dpi);
@@ -246,13 +216,7 @@ fn sharp_convex_corners_of_a_wide_pour_are_not_thin_copper() {
     );
     let img = gerber("", &body);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(14.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, false, 0.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 14.0, dpi, false, 0.0);
         assert!(k.findings.is_empty(), "{dpi} dpi: {:#?}", k.findings);
     }
 }
@@ -274,13 +238,7 @@ fn a_stub_drawn_at_the_limit_is_not_thin_copper_at_any_angle() {
     );
     let img = gerber("%ADD10R,1.5X1.5*%\n%ADD11C,0.2*%\n%ADD12C,0.12*%\n", &body);
     for dpi in DPIS {
-        let k = check_copper(
-            &img,
-            None,
-            board(12.0, 20.0),
-            &recipe(dpi, DrillMarkStyle::None, false, 0.0),
-            &ProcessLimits::default(),
-        );
+        let k = check_at(&img, 12.0, dpi, false, 0.0);
         let thin = of_kind(&k.findings, FindingKind::ThinCopper);
         assert_eq!(thin.len(), 1, "{dpi} dpi: {:#?}", k.findings);
         // The 0.12 mm spur runs from (3.75, 15.75) to (5.5, 17.5) beyond its pad.

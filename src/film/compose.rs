@@ -258,20 +258,10 @@ pub struct RenderedFilm {
     pub thin_rings: Vec<(Point, f64)>,
     /// Every warning of the render, the annular-ring warning (if any) included.
     pub warnings: Vec<String>,
-    /// The annular-ring warning alone (also in `warnings`). The process check
-    /// (`crate::check`) measures rings on the finished film against `[limits]` and is the one
-    /// source of ring findings wherever it runs; see [`RenderedFilm::warnings_beside_check`].
+    /// The annular-ring warning alone (also in `warnings`), for runs without the process check
+    /// (`crate::check` measures rings on the finished film and is the one source of ring
+    /// findings wherever it runs; the films job therefore renders without this check).
     pub ring_warning: Option<String>,
-}
-
-impl RenderedFilm {
-    /// The warnings for a run whose films also go through the process check: all but the
-    /// annular-ring warning, which the check reports (with the mark and the hole) instead.
-    pub fn warnings_beside_check(&self) -> impl Iterator<Item = &String> {
-        self.warnings
-            .iter()
-            .filter(move |w| self.ring_warning.as_ref() != Some(*w))
-    }
 }
 
 /// The device map of a film: the frame's film area at the recipe's resolution, with the

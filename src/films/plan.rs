@@ -194,12 +194,13 @@ pub fn make_films(
                 s.title, map.width, map.height
             )));
         }
-        let rendered =
-            compose::render_film(&plan.job(i), plan.profile.drill_marks.min_annular_ring_mm);
-        // Both callers run the process check, which reports thin rings itself.
+        // No ring check in the render: both callers run the process check, which measures
+        // the rings on the finished film and is the one source of ring findings.
+        let rendered = compose::render_film_on(&plan.job(i), map, None);
         warnings.extend(
             rendered
-                .warnings_beside_check()
+                .warnings
+                .iter()
                 .map(|w| format!("{}: {w}", s.title)),
         );
         made.push(MadeFilm {

@@ -61,7 +61,7 @@ pub fn run(a: CheckArgs) -> Result<ExitCode, String> {
                 .unwrap_or_else(|| "board".into())
         });
     let (films, frame, _warnings) =
-        crate::films::make_films(&board, &profile, job.as_ref(), &board_name, "")
+        crate::films::make_films_checked(&board, &profile, job.as_ref(), &board_name, "")
             .map_err(|e| e.to_string())?;
     let mut report = super::check_films(&films, &board, &frame.board, &profile.limits);
     if !a.no_proof {

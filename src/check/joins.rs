@@ -5,12 +5,12 @@
 //! so the closing of the film's copper sees nothing. Instead the design's connectivity is
 //! compared with the film's:
 //!
-//! 1. **Design pieces.** Every drawn object of the layer image is rendered alone, at the
-//!    film's pixel grid, in a window around it, and painted in order into runs that remember
-//!    which object painted each pixel last (Clear objects erase). Two objects belong to one
-//!    piece when they share a pixel centre: a point inside both shapes, so they overlap in the
-//!    design. Objects that only come within a pixel of each other stay separate, whichever
-//!    way the grid falls — that is what finds sub-pixel gaps.
+//! 1. **Design pieces.** The layer's objects painted in order at the film's pixel grid into
+//!    runs that remember which object painted each pixel last (Clear objects erase;
+//!    `crate::raster::DesignRuns`, recorded while the film is rendered). Two objects belong
+//!    to one piece when they share a pixel centre: a point inside both shapes, so they
+//!    overlap in the design. Objects that only come within a pixel of each other stay
+//!    separate, whichever way the grid falls — that is what finds sub-pixel gaps.
 //! 2. **Film pieces.** The film's copper components (union-find over pixel runs).
 //! 3. **Joins.** Design pieces whose pixels fall into one film component are joined on the
 //!    film. Where two of them come closest (the nearest pair of their pixels within the
@@ -27,8 +27,8 @@
 use super::area::Area;
 use super::measure::Labels;
 use super::{finding, FilmInput, Finding, FindingKind};
-use crate::image::{Bounds, Object, Point, Polarity};
-use crate::raster::{Bitmap, DeviceMap, ObjectRows, SpanScratch};
+use crate::image::{Bounds, Point, Polarity};
+use crate::raster::{render_with_design, Bitmap, DesignRuns, DeviceMap, RenderOptions, Run};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -42,7 +42,7 @@ const TOUCHING_MM: f64 = 0.001;
 const OUTLINE_TOLERANCE_MM: f64 = 1e-4;
 
 /// One row's runs: `[x0, x1)` and the object that painted them last.
-type Row = Vec<(u32, u32, u32)>;
+type Row = Vec<Run>;
 
 struct Uf(Vec<u32>);
 
@@ -63,158 +63,22 @@ impl Uf {
     }
 }
 
-/// Crop rows per band of the design painting (bands are painted in parallel).
-const BAND_ROWS: usize = 64;
-
-/// Pairs of objects that share a pixel, each noted once in a while: a small table of the
-/// pairs seen lately keeps the same pair, met row after row, from being listed each time.
-struct Overlaps {
-    pairs: Vec<(u32, u32)>,
-    recent: Vec<(u32, u32)>,
-}
-
-impl Overlaps {
-    const RECENT: usize = 1024;
-
-    fn new() -> Overlaps {
-        Overlaps {
-            pairs: Vec::new(),
-            recent: vec![(u32::MAX, u32::MAX); Self::RECENT],
-        }
-    }
-
-    fn note(&mut self, k: u32, j: u32) {
-        let slot = (k.wrapping_mul(0x9E37_79B1) ^ j) as usize % Self::RECENT;
-        if self.recent[slot] != (k, j) {
-            self.recent[slot] = (k, j);
-            self.pairs.push((k, j));
-        }
-    }
-}
-
-/// The design's runs: per crop row, the runs that remember which object painted them last,
-/// and the pairs of objects that share a pixel (overlap in the design).
-struct Design {
-    rows: Vec<Row>,
-    overlaps: Vec<(u32, u32)>,
-}
-
-/// Paints every object of the layer in order into crop rows, band by band (bands are
-/// independent: each row depends only on the objects in drawing order).
-fn paint_design(objects: &[Object], area: &Area, w: usize, h: usize) -> Design {
-    let base = area.map.with_mirror(false);
-    let source = ObjectRows::new(objects, &base);
-    // The checked area in unmirrored film columns.
-    let ux0 = if area.map.mirror {
-        area.map.width.saturating_sub(area.x0 + w)
-    } else {
-        area.x0
-    };
-    let ux1 = ux0 + w;
-    let nbands = h.div_ceil(BAND_ROWS);
-    let mut lists: Vec<Vec<u32>> = vec![Vec::new(); nbands];
-    for i in 0..objects.len() {
-        if let Some(((r0, r1), _)) = source.rows(i) {
-            let (c0, c1) = (r0.max(area.y0), r1.min(area.y0 + h));
-            if c0 < c1 {
-                let (b0, b1) = ((c0 - area.y0) / BAND_ROWS, (c1 - 1 - area.y0) / BAND_ROWS);
-                for l in &mut lists[b0..=b1] {
-                    l.push(i as u32);
-                }
-            }
-        }
-    }
-    let bands: Vec<Design> = lists
-        .par_iter()
-        .enumerate()
-        .map(|(b, list)| {
-            let (y0, y1) = (b * BAND_ROWS, ((b + 1) * BAND_ROWS).min(h));
-            let mut rows: Vec<Row> = vec![Vec::new(); y1 - y0];
-            let mut overlaps = Overlaps::new();
-            let mut work = SpanScratch::default();
-            let mut spans = Vec::new();
-            // Row by row, so that the row being painted stays in the cache.
-            for y in area.y0 + y0..area.y0 + y1 {
-                let row = &mut rows[y - area.y0 - y0];
-                for &k in list {
-                    let Some(((r0, r1), dark)) = source.rows(k as usize) else {
-                        continue;
-                    };
-                    if y < r0 || y >= r1 {
-                        continue;
-                    }
-                    source.spans(k as usize, y, &mut work, &mut spans);
-                    for &(a, c) in &spans {
-                        let (a, c) = (a.max(ux0), c.min(ux1));
-                        if a >= c {
-                            continue;
-                        }
-                        // Back to the film's own (possibly mirrored) columns, then to the crop.
-                        let (fa, fc) = if area.map.mirror {
-                            (area.map.width - c, area.map.width - a)
-                        } else {
-                            (a, c)
-                        };
-                        let (ca, cc) = ((fa - area.x0) as u32, (fc - area.x0) as u32);
-                        paint(row, ca, cc, k, dark, &mut overlaps);
-                    }
-                }
-            }
-            Design {
-                rows,
-                overlaps: overlaps.pairs,
-            }
+/// The design's runs on the checked area's rows, in crop columns.
+fn crop_rows(design: &DesignRuns, area: &Area, w: usize, h: usize) -> Vec<Row> {
+    let (x0, x1) = (area.x0 as u32, (area.x0 + w) as u32);
+    (0..h)
+        .map(|y| {
+            let Some(row) = design.rows.get(area.y0 + y) else {
+                return Vec::new();
+            };
+            let start = row.partition_point(|r| r.1 <= x0);
+            row[start..]
+                .iter()
+                .take_while(|r| r.0 < x1)
+                .map(|&(a, b, o)| (a.max(x0) - x0, b.min(x1) - x0, o))
+                .collect()
         })
-        .collect();
-    let mut design = Design {
-        rows: Vec::with_capacity(h),
-        overlaps: Vec::new(),
-    };
-    for band in bands {
-        design.rows.extend(band.rows);
-        design.overlaps.extend(band.overlaps);
-    }
-    design
-}
-
-/// Paints `[a, b)` of object `k` into `row` (erases when `!dark`), noting in `overlaps` every
-/// object whose pixels it covers.
-fn paint(row: &mut Row, a: u32, b: u32, k: u32, dark: bool, overlaps: &mut Overlaps) {
-    // Runs are sorted and disjoint: the ones overlapping [a, b) are one block.
-    let i0 = row.partition_point(|r| r.1 <= a);
-    let i1 = i0 + row[i0..].iter().take_while(|r| r.0 < b).count();
-    let mut mid = [(0, 0, 0); 3];
-    let mut m = 0;
-    if i0 < i1 {
-        let (first, last) = (row[i0], row[i1 - 1]);
-        if dark {
-            for r in &row[i0..i1] {
-                if r.2 != k {
-                    overlaps.note(k, r.2);
-                }
-            }
-        }
-        if first.0 < a {
-            mid[m] = (first.0, a, first.2);
-            m += 1;
-        }
-        if dark {
-            mid[m] = (a, b, k);
-            m += 1;
-        }
-        if last.1 > b {
-            mid[m] = (b, last.1, last.2);
-            m += 1;
-        }
-    } else if dark {
-        mid[0] = (a, b, k);
-        m = 1;
-    }
-    if i1 - i0 == m {
-        row[i0..i1].copy_from_slice(&mid[..m]);
-    } else {
-        row.splice(i0..i1, mid[..m].iter().copied());
-    }
+        .collect()
 }
 
 /// Appends to `out` the parts of `[x0, x1)` not covered by runs of `row` whose object's piece
@@ -269,14 +133,20 @@ pub(super) fn closed_gaps(
     }
     let (w, h) = (material.width(), material.height());
 
-    // 1. Design pieces: objects painted in order, joined where they share a pixel.
-    let Design {
-        rows,
-        overlaps: shared,
-    } = paint_design(&image.objects, area, w, h);
+    // 1. Design pieces: objects painted in order, joined where they share a pixel. The films
+    // job records them while rendering the film; otherwise the layer is painted again.
+    let painted;
+    let design = match input.design {
+        Some(d) => d,
+        None => {
+            painted = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
+            &painted
+        }
+    };
+    let rows = crop_rows(design, area, w, h);
     let n = image.objects.len() as u32;
     let mut uf = Uf((0..n).collect());
-    for (a, b) in shared {
+    for &(a, b) in &design.overlaps {
         uf.union(a, b);
     }
     let piece: Vec<u32> = (0..n).map(|i| uf.find(i)).collect();
@@ -596,18 +466,5 @@ mod tests {
         assert_eq!(segment_distance(&a, &[[0.5, -1.0], [0.5, 1.0]]).0, 0.0);
         let (d, p, q) = segment_distance(&a, &[[0.5, 0.5], [0.5, 2.0]]);
         assert!((d - 0.5).abs() < 1e-12 && p == [0.5, 0.0] && q == [0.5, 0.5]);
-    }
-
-    #[test]
-    fn painting_joins_overlapping_objects_only() {
-        let mut shared = Overlaps::new();
-        let mut row: Row = Vec::new();
-        paint(&mut row, 0, 10, 0, true, &mut shared);
-        paint(&mut row, 10, 20, 1, true, &mut shared); // adjacent: not joined
-        paint(&mut row, 18, 30, 2, true, &mut shared); // overlaps 1
-        assert_eq!(shared.pairs, vec![(2, 1)]);
-        paint(&mut row, 5, 25, 0, false, &mut shared);
-        assert_eq!(row, vec![(0, 5, 0), (25, 30, 2)]);
-        assert_eq!(shared.pairs.len(), 1, "erasing joins nothing");
     }
 }

@@ -196,6 +196,10 @@ pub struct FilmInput<'a> {
     pub image: Option<&'a LayerImage>,
     /// Drill files whose holes sit on this film (copper films).
     pub drills: &'a [&'a DrillFile],
+    /// Which layer object each pixel shows, when recorded while rendering the film
+    /// (`crate::film::compose::render_film_recording`); otherwise the closed-gap search
+    /// paints the layer again.
+    pub design: Option<&'a crate::raster::DesignRuns>,
 }
 
 /// How far beyond the board's extents the check looks, mm: the film keeps layer artwork up
@@ -700,6 +704,7 @@ pub fn check_films(
                 recipe: &f.recipe,
                 image: image_of(&f.source),
                 drills: film_drills,
+                design: f.rendered.design.as_ref(),
             };
             check_film(&input, frame_board, limits)
         })

@@ -5,9 +5,11 @@
 //! - [`DeviceMap`]: board mm → device pixels of one film (separate x and y resolution,
 //!   mirror, stretch correction), serializable as an explicit affine.
 //! - [`render`]: objects in order → bitmap, by pixel centres, in parallel bands.
+//! - [`render_with_design`]: the same, plus which object each pixel shows ([`DesignRuns`]).
 //! - [`morphology`]: grow/shrink the composed film by a disc, opening and closing.
 
 mod bitmap;
+mod design;
 mod device;
 pub mod morphology;
 mod render;
@@ -16,6 +18,6 @@ pub(crate) mod shift;
 mod spans;
 
 pub use bitmap::Bitmap;
+pub use design::{DesignRuns, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
-pub use render::{render, render_with, RenderOptions};
-pub(crate) use render::{ObjectRows, SpanScratch};
+pub use render::{render, render_with, render_with_design, RenderOptions};

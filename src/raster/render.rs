@@ -10,6 +10,7 @@
 //! band. No 8-bit or RGBA canvas ever exists.
 
 use super::bitmap::{fill_row_span, Bitmap};
+use super::design::{DesignRuns, Overlaps, PaintOp, RowPainter};
 use super::device::DeviceMap;
 use super::shapes::{self, Node, Scratch};
 use super::spans::Span;
@@ -45,6 +46,8 @@ impl RenderOptions {
 }
 
 struct Prepared {
+    /// Position in the object list.
+    index: u32,
     dark: bool,
     node: Node,
     /// Rows `first..end` that may contain pixels of the object.
@@ -63,17 +66,44 @@ pub fn render(objects: &[Object], map: &DeviceMap) -> Bitmap {
 
 /// [`render`] with explicit band size and threading.
 pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) -> Bitmap {
+    render_bands(objects, map, opts, false).0
+}
+
+/// [`render`], and which object each dark pixel shows ([`DesignRuns`]) from the same spans.
+pub fn render_with_design(
+    objects: &[Object],
+    map: &DeviceMap,
+    opts: &RenderOptions,
+) -> (Bitmap, DesignRuns) {
+    let (bitmap, design) = render_bands(objects, map, opts, true);
+    (bitmap, design.unwrap_or_default())
+}
+
+fn render_bands(
+    objects: &[Object],
+    map: &DeviceMap,
+    opts: &RenderOptions,
+    record: bool,
+) -> (Bitmap, Option<DesignRuns>) {
     let mut bitmap = Bitmap::new(map.width, map.height);
     if map.width == 0 || map.height == 0 {
-        return bitmap;
+        let design = DesignRuns {
+            rows: vec![Vec::new(); map.height],
+            overlaps: Vec::new(),
+        };
+        return (bitmap, record.then_some(design));
     }
     // At least one row, at most the film (also keeps `words_per_row × band_rows` small).
     let band_rows = opts.band_rows.clamp(1, map.height);
-    let prepare_one = |o: &Object| prepare_object(o, map);
+    let prepare_one = |(i, o): (usize, &Object)| prepare_object(o, map, i as u32);
     let prepared: Vec<Prepared> = if opts.parallel {
-        objects.par_iter().filter_map(prepare_one).collect()
+        objects
+            .par_iter()
+            .enumerate()
+            .filter_map(prepare_one)
+            .collect()
     } else {
-        objects.iter().filter_map(prepare_one).collect()
+        objects.iter().enumerate().filter_map(prepare_one).collect()
     };
 
     let nbands = map.height.div_ceil(band_rows);
@@ -86,24 +116,37 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
 
     let wpr = bitmap.words_per_row();
     let paint = |(b, chunk): (usize, &mut [u64])| {
-        paint_band(chunk, b * band_rows, wpr, &bands[b], &prepared, map);
+        paint_band(chunk, b * band_rows, wpr, &bands[b], &prepared, map, record)
     };
     let words = bitmap.words_mut();
-    if opts.parallel {
+    let parts: Vec<Option<DesignRuns>> = if opts.parallel {
         words
             .par_chunks_mut(wpr * band_rows)
             .enumerate()
-            .for_each(paint);
+            .map(paint)
+            .collect()
     } else {
         words
             .chunks_mut(wpr * band_rows)
             .enumerate()
-            .for_each(paint);
-    }
-    bitmap
+            .map(paint)
+            .collect()
+    };
+    let design = record.then(|| {
+        let mut all = DesignRuns {
+            rows: Vec::with_capacity(map.height),
+            overlaps: Vec::new(),
+        };
+        for part in parts.into_iter().flatten() {
+            all.rows.extend(part.rows);
+            all.overlaps.extend(part.overlaps);
+        }
+        all
+    });
+    (bitmap, design)
 }
 
-fn prepare_object(o: &Object, map: &DeviceMap) -> Option<Prepared> {
+fn prepare_object(o: &Object, map: &DeviceMap, index: u32) -> Option<Prepared> {
     if !o.shape.is_finite() {
         return None;
     }
@@ -120,12 +163,14 @@ fn prepare_object(o: &Object, map: &DeviceMap) -> Option<Prepared> {
     }
     let node = shapes::prepare(&o.shape, map)?;
     Some(Prepared {
+        index,
         dark: o.polarity == Polarity::Dark,
         node,
         rows,
     })
 }
 
+/// Paints one band's rows; with `record`, also returns the band's [`DesignRuns`].
 fn paint_band(
     chunk: &mut [u64],
     first_row: usize,
@@ -133,11 +178,14 @@ fn paint_band(
     list: &[u32],
     prepared: &[Prepared],
     map: &DeviceMap,
-) {
+    record: bool,
+) -> Option<DesignRuns> {
     let rows_here = chunk.len() / wpr;
     let end_row = first_row + rows_here;
     let mut scratch = Scratch::default();
     let mut spans: Vec<Span> = Vec::new();
+    // Per row of the band, the spans in drawing order (only when recording).
+    let mut ops: Vec<Vec<PaintOp>> = vec![Vec::new(); if record { rows_here } else { 0 }];
     let grid = map.grid();
     for &i in list {
         let p = &prepared[i as usize];
@@ -155,66 +203,42 @@ fn paint_band(
                     (x0, x1)
                 };
                 fill_row_span(words, a, b, p.dark);
+                if record {
+                    ops[row - first_row].push((a as u32, b as u32, p.index, p.dark));
+                }
             }
         }
     }
-}
-
-/// Objects prepared for row queries one at a time: each object's own pixel spans, not the
-/// painted film. For the process check, which compares the drawn pieces of a layer with the
-/// film (`crate::check`); it needs the pixels every object covers under the same pixel-centre
-/// rule as [`render`], without a bitmap per object.
-pub(crate) struct ObjectRows {
-    grid: super::device::Grid,
-    /// Per object (drawing order); `None` when it can paint nothing on the map.
-    prepared: Vec<Option<Prepared>>,
-}
-
-/// Reusable working memory of [`ObjectRows::spans`] (one per thread).
-#[derive(Default)]
-pub(crate) struct SpanScratch(Scratch);
-
-impl ObjectRows {
-    /// Prepares every object for `map` (in parallel).
-    pub(crate) fn new(objects: &[Object], map: &DeviceMap) -> ObjectRows {
-        ObjectRows {
-            grid: map.grid(),
-            prepared: objects.par_iter().map(|o| prepare_object(o, map)).collect(),
+    record.then(|| {
+        let mut painter = RowPainter::new();
+        let mut overlaps = Overlaps::new();
+        let rows = ops
+            .iter()
+            .map(|row_ops| {
+                let mut runs = Vec::new();
+                painter.paint_row(row_ops, &mut overlaps, &mut runs);
+                runs
+            })
+            .collect();
+        DesignRuns {
+            rows,
+            overlaps: overlaps.pairs,
         }
-    }
-
-    /// Rows `first..end` of the map that may hold pixels of object `i`, and whether it is
-    /// dark; `None` when it paints nothing.
-    pub(crate) fn rows(&self, i: usize) -> Option<((usize, usize), bool)> {
-        self.prepared.get(i)?.as_ref().map(|p| (p.rows, p.dark))
-    }
-
-    /// The spans `[x0, x1)` of object `i` on `row`, in the map's *unmirrored* columns
-    /// (sorted, disjoint, within the map). Empty outside [`Self::rows`].
-    pub(crate) fn spans(&self, i: usize, row: usize, work: &mut SpanScratch, out: &mut Vec<Span>) {
-        out.clear();
-        let Some(Some(p)) = self.prepared.get(i) else {
-            return;
-        };
-        if row < p.rows.0 || row >= p.rows.1 {
-            return;
-        }
-        let y = self.grid.row_center_y(row);
-        shapes::node_spans(&p.node, &self.grid, row, y, &mut work.0, out);
-    }
+    })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::image::{Point, Shape};
+    use crate::image::{Contour, Point, Shape};
 
     #[test]
-    fn object_spans_are_the_pixel_centres_inside_the_disc() {
+    fn design_runs_are_the_pixel_centres_inside_each_object() {
         // A disc of radius 1 mm on a 254 dpi grid (0.1 mm pixels, origin at 0): pixel (i, j)
         // is dark when its centre lies strictly inside, (x − cx)² + (y − cy)² < r² (the
-        // circle's equation, elementary geometry); the film rendered by `render` agrees.
-        let map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
+        // circle's equation, elementary geometry). A square pad drawn after it over its right
+        // part takes those pixels (x in [2.5, 3.5], y in [1.0, 2.0]); a clear square erases
+        // x in [0.5, 1.2]. The bitmap and the runs agree with that, mirrored or not.
         let disc = Object {
             polarity: Polarity::Dark,
             shape: Shape::Disc {
@@ -222,25 +246,60 @@ mod tests {
                 diameter: 2.0,
             },
         };
-        let rows = ObjectRows::new(std::slice::from_ref(&disc), &map);
-        let film = render_with(std::slice::from_ref(&disc), &map, &RenderOptions::serial());
-        let (mut work, mut spans) = (SpanScratch::default(), Vec::new());
-        let mut dark = 0;
-        for j in 0..map.height {
-            rows.spans(0, j, &mut work, &mut spans);
-            let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
-            for i in 0..map.width {
-                let x = 0.1 * (i as f64 + 0.5);
-                let inside = (x - 2.03).powi(2) + (y - 1.47).powi(2) < 1.0;
-                let in_spans = spans.iter().any(|&(a, b)| a <= i && i < b);
-                assert_eq!(in_spans, inside, "pixel ({i}, {j})");
-                assert_eq!(film.get(i, j), inside, "film pixel ({i}, {j})");
-                dark += inside as usize;
+        let square = |x0: f64, x1: f64, y0: f64, y1: f64, polarity| Object {
+            polarity,
+            shape: Shape::Polygon(Contour::from_points(&[
+                Point::new(x0, y0),
+                Point::new(x1, y0),
+                Point::new(x1, y1),
+                Point::new(x0, y1),
+            ])),
+        };
+        let objects = [
+            disc,
+            square(2.5, 3.5, 1.0, 2.0, Polarity::Dark),
+            square(0.5, 1.2, 0.0, 3.0, Polarity::Clear),
+        ];
+        for mirror in [false, true] {
+            let mut map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
+            map.mirror = mirror;
+            let (film, design) = render_with_design(&objects, &map, &RenderOptions::serial());
+            assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
+            assert_eq!(design.rows.len(), map.height);
+            let mut dark = 0;
+            for j in 0..map.height {
+                let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
+                for c in 0..map.width {
+                    let i = if mirror { map.width - 1 - c } else { c };
+                    let x = 0.1 * (i as f64 + 0.5);
+                    let in_disc = (x - 2.03).powi(2) + (y - 1.47).powi(2) < 1.0;
+                    let in_pad = (2.5..=3.5).contains(&x) && (1.0..=2.0).contains(&y);
+                    let erased = (0.5..=1.2).contains(&x);
+                    let want = if erased {
+                        None
+                    } else if in_pad {
+                        Some(1)
+                    } else if in_disc {
+                        Some(0)
+                    } else {
+                        None
+                    };
+                    let run = design.rows[j]
+                        .iter()
+                        .find(|r| r.0 as usize <= c && c < r.1 as usize);
+                    assert_eq!(run.map(|r| r.2), want, "pixel ({c}, {j}), mirror {mirror}");
+                    assert_eq!(film.get(c, j), want.is_some(), "film pixel ({c}, {j})");
+                    dark += want.is_some() as usize;
+                }
             }
+            // About π r² / (0.1 mm)² = 314 pixels, less the erased sliver (x 1.03–1.2, about
+            // 9 pixels), plus the part of the 100-pixel pad beyond the disc (about 50).
+            assert!((330..380).contains(&dark), "{dark}");
+            // The pad shares pixels with the disc; the clear square joins nothing.
+            let mut pairs = design.overlaps.clone();
+            pairs.sort_unstable();
+            pairs.dedup();
+            assert_eq!(pairs, vec![(1, 0)]);
         }
-        // About π r² / (0.1 mm)² = 314 pixels.
-        assert!((290..340).contains(&dark), "{dark}");
-        assert_eq!(rows.rows(0).map(|r| r.1), Some(true));
-        assert!(rows.rows(1).is_none());
     }
 }

@@ -1,0 +1,263 @@
+//! Which drawn object each pixel of a film shows: the layer's objects painted in order into
+//! runs that remember their object, and the pairs of objects that share a pixel.
+//!
+//! The process check compares the design's pieces (objects that overlap) with the film's
+//! copper (`crate::check`). Painting follows [`super::render`] exactly — the same objects, the
+//! same pixel-centre rule, the same order, Clear objects erase — so a run's pixels are the
+//! film layer's own pixels, tagged with the object that painted them last.
+//!
+//! Two objects *share a pixel* when a Dark object paints a pixel that another object painted
+//! earlier and no Clear object erased in between: a pixel centre inside both shapes, so the
+//! two overlap in the design. Objects that only come within a pixel of each other do not.
+//!
+//! Each row is painted by a sweep over its spans' ends ([`RowPainter::paint_row`]): the cost
+//! follows the number of spans on the row, not the pixels they cover.
+
+/// A run `[x0, x1)` of one row and the object that painted it last.
+pub type Run = (u32, u32, u32);
+
+/// One object's span on one row, in drawing order: `[x0, x1)`, the object, and whether it
+/// paints (Dark) or erases (Clear).
+pub(crate) type PaintOp = (u32, u32, u32, bool);
+
+/// The design's runs on a film's rows and the pairs of objects that share a pixel.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct DesignRuns {
+    /// Per row of the film, the runs in the film's own (possibly mirrored) columns, sorted
+    /// and disjoint. Object indices are positions in the rendered object list.
+    pub rows: Vec<Vec<Run>>,
+    /// Pairs (later object, earlier object) that share a pixel; a pair may repeat.
+    pub overlaps: Vec<(u32, u32)>,
+}
+
+/// Pairs of objects that share a pixel, each noted once in a while: a small table of the
+/// pairs seen lately keeps the same pair, met row after row, from being listed each time.
+pub(crate) struct Overlaps {
+    pub pairs: Vec<(u32, u32)>,
+    recent: Vec<(u32, u32)>,
+}
+
+impl Overlaps {
+    /// Slots of the table: a row holds a few hundred pairs, met again on the next rows.
+    const RECENT: usize = 8192;
+
+    pub fn new() -> Overlaps {
+        Overlaps {
+            pairs: Vec::new(),
+            recent: vec![(u32::MAX, u32::MAX); Self::RECENT],
+        }
+    }
+
+    fn note(&mut self, k: u32, j: u32) {
+        // Fibonacci hashing of both indices; the top bits are the best mixed.
+        let h = (u64::from(k) << 32 | u64::from(j)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+        let slot = (h >> 51) as usize % Self::RECENT;
+        if self.recent[slot] != (k, j) {
+            self.recent[slot] = (k, j);
+            self.pairs.push((k, j));
+        }
+    }
+}
+
+/// Paints rows of one film, one after the other (one painter per thread; keeps its working
+/// memory between rows).
+#[derive(Default)]
+pub(crate) struct RowPainter {
+    /// Span ends, sorted: `x << 32 | op index`.
+    events: Vec<u64>,
+    /// The spans covering the current stretch of the row, by op index (drawing order).
+    active: Vec<u32>,
+}
+
+impl RowPainter {
+    pub fn new() -> RowPainter {
+        RowPainter::default()
+    }
+
+    /// Paints one row's spans (`ops`, in drawing order) and appends its runs to `out`; notes
+    /// in `overlaps` the objects each Dark span paints over.
+    ///
+    /// A sweep over the span ends: between two consecutive ends the same spans cover every
+    /// pixel, and painting them in drawing order leaves the last one's object (nothing when
+    /// it is Clear). Each Dark span paints over what the span before it left — so two spans
+    /// next to each other in drawing order, both Dark, share those pixels.
+    pub fn paint_row(&mut self, ops: &[PaintOp], overlaps: &mut Overlaps, out: &mut Vec<Run>) {
+        // Event: x << 32 | op index << 1 | 1 for an end. At one x, an op's start comes before
+        // its end only if a == b, and empty spans are left out.
+        self.events.clear();
+        for (i, &(a, b, _, _)) in ops.iter().enumerate() {
+            if a < b {
+                let i = (i as u64) << 1;
+                self.events.push(u64::from(a) << 32 | i);
+                self.events.push(u64::from(b) << 32 | i | 1);
+            }
+        }
+        self.events.sort_unstable();
+        self.active.clear();
+        let active = &mut self.active;
+        let mut e = 0;
+        while e < self.events.len() {
+            let x = (self.events[e] >> 32) as u32;
+            let batch = e;
+            while e < self.events.len() && (self.events[e] >> 32) as u32 == x {
+                let v = self.events[e];
+                let i = (v as u32) >> 1;
+                // Few spans overlap at once: linear scans beat a binary search here.
+                if v & 1 == 1 {
+                    if let Some(at) = active.iter().rposition(|&a| a == i) {
+                        active.remove(at);
+                    }
+                } else {
+                    let at = active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1);
+                    active.insert(at, i);
+                }
+                e += 1;
+            }
+            if active.is_empty() {
+                continue;
+            }
+            // Spans next to each other in drawing order that were not neighbours before
+            // x: beside a span that started here, or across one that ended here. Pairs
+            // that were neighbours before were noted then.
+            for &v in &self.events[batch..e] {
+                let i = (v as u32) >> 1;
+                let at = active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1);
+                let (lo, hi) = if v & 1 == 0 {
+                    (at.saturating_sub(1), at + 2)
+                } else {
+                    (at.saturating_sub(1), at + 1)
+                };
+                for pair in active[lo..hi.min(active.len())].windows(2) {
+                    let (under, over) = (ops[pair[0] as usize], ops[pair[1] as usize]);
+                    if under.3 && over.3 && under.2 != over.2 {
+                        overlaps.note(over.2, under.2);
+                    }
+                }
+            }
+            let top = active[active.len() - 1];
+            let (_, _, k, dark) = ops[top as usize];
+            let next = self.events.get(e).map_or(x, |v| (v >> 32) as u32);
+            if !dark || next <= x {
+                continue;
+            }
+            match out.last_mut() {
+                Some(run) if run.1 == x && run.2 == k => run.1 = next,
+                _ => out.push((x, next, k)),
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn painting_joins_overlapping_objects_only() {
+        let mut shared = Overlaps::new();
+        let mut painter = RowPainter::new();
+        let mut row = Vec::new();
+        let ops = [
+            (0, 10, 0, true),
+            (10, 20, 1, true), // adjacent to 0: not joined
+            (18, 30, 2, true), // overlaps 1
+        ];
+        painter.paint_row(&ops, &mut shared, &mut row);
+        assert_eq!(shared.pairs, vec![(2, 1)]);
+        assert_eq!(row, vec![(0, 10, 0), (10, 18, 1), (18, 30, 2)]);
+        // Erasing joins nothing, and a later object over erased pixels joins nothing either.
+        let mut shared = Overlaps::new();
+        row.clear();
+        let ops = [
+            (0, 10, 0, true),
+            (18, 30, 2, true),
+            (5, 25, 9, false),
+            (12, 16, 4, true), // only over erased pixels
+            (3, 27, 3, true),  // over what is left of 0 and 2, and over 4
+        ];
+        painter.paint_row(&ops, &mut shared, &mut row);
+        assert_eq!(shared.pairs, vec![(3, 0), (3, 4), (3, 2)]);
+        assert_eq!(row, vec![(0, 3, 0), (3, 27, 3), (27, 30, 2)]);
+        // The buffer is empty again: a row with nothing painted has no runs.
+        row.clear();
+        painter.paint_row(&[(30, 31, 4, false)], &mut shared, &mut row);
+        assert!(row.is_empty());
+    }
+
+    /// The painting model spelled out pixel by pixel: an owner per pixel, spans painted in
+    /// order; a Dark span notes every other owner it paints over.
+    fn painted_pixel_by_pixel(ops: &[PaintOp], width: usize) -> (Vec<Run>, Vec<(u32, u32)>) {
+        let mut owner: Vec<Option<u32>> = vec![None; width];
+        let mut pairs = Vec::new();
+        for &(a, b, k, dark) in ops {
+            for px in &mut owner[a as usize..b as usize] {
+                if dark {
+                    if let Some(v) = *px {
+                        if v != k {
+                            pairs.push((k, v));
+                        }
+                    }
+                    *px = Some(k);
+                } else {
+                    *px = None;
+                }
+            }
+        }
+        let mut runs: Vec<Run> = Vec::new();
+        for (x, o) in owner.iter().enumerate() {
+            if let Some(k) = *o {
+                match runs.last_mut() {
+                    Some(r) if r.1 == x as u32 && r.2 == k => r.1 += 1,
+                    _ => runs.push((x as u32, x as u32 + 1, k)),
+                }
+            }
+        }
+        pairs.sort_unstable();
+        pairs.dedup();
+        (runs, pairs)
+    }
+
+    #[test]
+    fn sweep_agrees_with_painting_pixel_by_pixel() {
+        // Random rows of spans (a small linear congruential generator, so the test is the
+        // same on every run), some objects with two spans, about one in five Clear.
+        let mut seed = 12_345u64;
+        let mut next = |n: u64| {
+            seed = seed
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (seed >> 33) % n
+        };
+        let mut painter = RowPainter::new();
+        for _ in 0..500 {
+            let mut ops = Vec::new();
+            let mut k = 0u32;
+            for _ in 0..next(12) {
+                let a = next(60) as u32;
+                let b = a + next(25) as u32;
+                k += next(2) as u32; // consecutive spans may belong to one object
+                let dark = next(5) != 0;
+                ops.push((a, b, k, dark));
+                k += 1;
+            }
+            // One object's spans on a row never overlap: keep only such rows.
+            let clash = ops.iter().enumerate().any(|(i, p)| {
+                ops[i + 1..]
+                    .iter()
+                    .any(|q| q.2 == p.2 && q.0 < p.1 && p.0 < q.1)
+            });
+            if clash {
+                continue;
+            }
+            let (want_runs, want_pairs) = painted_pixel_by_pixel(&ops, 90);
+            let mut shared = Overlaps::new();
+            let mut runs = Vec::new();
+            painter.paint_row(&ops, &mut shared, &mut runs);
+            let mut pairs = shared.pairs;
+            pairs.sort_unstable();
+            pairs.dedup();
+            assert_eq!(runs, want_runs, "{ops:?}");
+            assert_eq!(pairs, want_pairs, "{ops:?}");
+        }
+    }
+}

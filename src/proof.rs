@@ -189,19 +189,52 @@ struct Canvas {
 }
 
 impl Canvas {
+    /// Paints `shapes` in `colour`: rendered on a window of the canvas around them (a
+    /// finding's ring is a few hundred pixels, the canvas millions).
     fn paint(&mut self, shapes: Vec<Shape>, colour: Rgb) {
         if shapes.is_empty() {
             return;
         }
-        let mask = render(&objects(shapes), &self.map);
-        let (w, index) = (self.map.width, named(colour));
+        let mut b = Bounds::EMPTY;
+        for s in &shapes {
+            b.union(&s.bounds());
+        }
+        let m = &self.map;
+        let (px0, py0) = m.to_px(Point::new(b.min_x, b.max_y));
+        let (px1, py1) = m.to_px(Point::new(b.max_x, b.min_y));
+        let clamp = |v: f64, hi: usize| {
+            if v.is_finite() {
+                v.clamp(0.0, hi as f64) as usize
+            } else {
+                0
+            }
+        };
+        // One pixel more each way, so that rounding never drops an edge pixel.
+        let (x0, y0) = (clamp(px0 - 1.0, m.width), clamp(py0 - 1.0, m.height));
+        let (x1, y1) = (clamp(px1 + 2.0, m.width), clamp(py1 + 2.0, m.height));
+        if x0 >= x1 || y0 >= y1 {
+            return;
+        }
+        // The window's pixels are the canvas's own: its origin is the window's lower left.
+        let window = DeviceMap::new(
+            Point::new(
+                m.origin.x + x0 as f64 / m.px_per_mm_x(),
+                m.origin.y + (m.height - y1) as f64 / m.px_per_mm_y(),
+            ),
+            x1 - x0,
+            y1 - y0,
+            m.dpi_x,
+            m.dpi_y,
+        );
+        let mask = render(&objects(shapes), &window);
+        let (w, index) = (m.width, named(colour));
         for y in 0..mask.height() {
             for (wi, &word) in mask.row(y).iter().enumerate() {
                 let mut bits = word;
                 while bits != 0 {
                     let x = wi * 64 + bits.leading_zeros() as usize;
                     bits &= !(1u64 << (63 - (x % 64)));
-                    self.pixels[y * w + x] = index;
+                    self.pixels[(y0 + y) * w + x0 + x] = index;
                 }
             }
         }
@@ -257,23 +290,49 @@ impl Samples {
         Samples { n, cols, rows }
     }
 
-    /// Fraction of the samples of picture pixel (`x`, `y`) on material.
-    fn coverage(&self, film: &CopperFilm<'_>, x: usize, y: usize) -> f64 {
+    /// The film's word index and bit shift of every column sample, with a mask that is 0 for
+    /// samples off the film (their word index is 0, so the read stays in the row).
+    fn column_bits(&self) -> Vec<(u32, u32, u64)> {
+        self.cols
+            .iter()
+            .map(|&fx| match fx {
+                usize::MAX => (0, 0, 0),
+                fx => ((fx / 64) as u32, (63 - fx % 64) as u32, 1),
+            })
+            .collect()
+    }
+
+    /// Adds to `hits[x]` the samples of picture row `y` that fall on material, for every
+    /// picture column `x` in `x0..x1` (`bits` from [`Self::column_bits`]).
+    fn add_row(
+        &self,
+        film: &CopperFilm<'_>,
+        bits: &[(u32, u32, u64)],
+        y: usize,
+        (x0, x1): (usize, usize),
+        hits: &mut [u8],
+    ) {
         let n = self.n;
-        let mut hits = 0;
         for &fy in &self.rows[y * n..(y + 1) * n] {
             if fy == usize::MAX {
                 continue;
             }
             let row = film.film.row(fy);
-            for &fx in &self.cols[x * n..(x + 1) * n] {
-                if fx != usize::MAX {
-                    let bit = (row[fx / 64] >> (63 - fx % 64)) & 1 == 1;
-                    hits += (bit == film.black_is_material) as usize;
+            for (x, h) in hits.iter_mut().enumerate().take(x1).skip(x0) {
+                let mut set = 0;
+                let mut valid = 0;
+                for &(wi, sh, ok) in &bits[x * n..(x + 1) * n] {
+                    set += (row[wi as usize] >> sh) & ok;
+                    valid += ok;
                 }
+                // Material is black or clear on the film.
+                *h += if film.black_is_material {
+                    set
+                } else {
+                    valid - set
+                } as u8;
             }
         }
-        hits as f64 / (n * n) as f64
     }
 }
 
@@ -346,22 +405,39 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
             (c.ceil().max(0.0) as usize).min(w),
         )
     };
+    let top_bits = top.as_ref().map(|(_, s)| s.column_bits());
+    let bottom_bits = bottom.as_ref().map(|(_, s)| s.column_bits());
     canvas
         .pixels
         .par_chunks_mut(w)
         .enumerate()
         .filter(|(y, _)| (ky0..ky1).contains(y))
-        .for_each(|(y, row)| {
-            for (x, px) in row.iter_mut().enumerate().take(kx1).skip(kx0) {
-                let ft = top.as_ref().map_or(0.0, |(f, s)| s.coverage(f, x, y));
-                let fb = bottom.as_ref().map_or(0.0, |(f, s)| s.coverage(f, x, y));
-                if ft == 0.0 && fb == 0.0 {
-                    continue;
+        .for_each_init(
+            || (vec![0u8; w], vec![0u8; w]),
+            |(ht, hb), (y, row)| {
+                // Samples on material per picture pixel, top and bottom.
+                ht.fill(0);
+                hb.fill(0);
+                if let (Some((f, s)), Some(bits)) = (&top, &top_bits) {
+                    s.add_row(f, bits, y, (kx0, kx1), ht);
                 }
-                let level = |f: f64| (f * 4.0 + 0.5) as usize;
-                *px = (BLEND0 + level(ft) * LEVELS + level(fb)) as u8;
-            }
-        });
+                if let (Some((f, s)), Some(bits)) = (&bottom, &bottom_bits) {
+                    s.add_row(f, bits, y, (kx0, kx1), hb);
+                }
+                let fraction = |hits: u8, s: Option<&Samples>| {
+                    s.map_or(0.0, |s| hits as f64 / (s.n * s.n) as f64)
+                };
+                let (st, sb) = (top.as_ref().map(|t| &t.1), bottom.as_ref().map(|b| &b.1));
+                for x in kx0..kx1 {
+                    if ht[x] == 0 && hb[x] == 0 {
+                        continue;
+                    }
+                    let level = |f: f64| (f * 4.0 + 0.5) as usize;
+                    let (ft, fb) = (fraction(ht[x], st), fraction(hb[x], sb));
+                    row[x] = (BLEND0 + level(ft) * LEVELS + level(fb)) as u8;
+                }
+            },
+        );
 
     // Outline, holes, targets.
     let line = (1.5 / ppm).max(0.1);

@@ -28,7 +28,7 @@ use super::area::Area;
 use super::measure::Labels;
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, Point, Polarity};
-use crate::raster::{render_with_design, Bitmap, DesignRuns, DeviceMap, RenderOptions, Run};
+use crate::raster::{render_with_design, Bitmap, DesignRuns, DeviceMap, RenderOptions};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -40,9 +40,6 @@ const MAX_PAIRS: usize = 2_000;
 const TOUCHING_MM: f64 = 0.001;
 /// Arc tolerance of the outlines used for the exact design gap, mm.
 const OUTLINE_TOLERANCE_MM: f64 = 1e-4;
-
-/// One row's runs: `[x0, x1)` and the object that painted them last.
-type Row = Vec<Run>;
 
 struct Uf(Vec<u32>);
 
@@ -64,21 +61,20 @@ impl Uf {
 }
 
 /// The design's runs on the checked area's rows, in crop columns.
-fn crop_rows(design: &DesignRuns, area: &Area, w: usize, h: usize) -> Vec<Row> {
+fn crop_rows(design: &DesignRuns, area: &Area, w: usize, h: usize) -> DesignRuns {
     let (x0, x1) = (area.x0 as u32, (area.x0 + w) as u32);
-    (0..h)
-        .map(|y| {
-            let Some(row) = design.rows.get(area.y0 + y) else {
-                return Vec::new();
-            };
-            let start = row.partition_point(|r| r.1 <= x0);
+    let mut out = DesignRuns::default();
+    for y in 0..h {
+        let row = design.row(area.y0 + y);
+        let start = row.partition_point(|r| r.1 <= x0);
+        out.push_row(
             row[start..]
                 .iter()
                 .take_while(|r| r.0 < x1)
-                .map(|&(a, b, o)| (a.max(x0) - x0, b.min(x1) - x0, o))
-                .collect()
-        })
-        .collect()
+                .map(|&(a, b, o)| (a.max(x0) - x0, b.min(x1) - x0, o)),
+        );
+    }
+    out
 }
 
 /// Appends to `out` the parts of `[x0, x1)` not covered by runs of `row` whose object's piece
@@ -153,7 +149,8 @@ pub(super) fn closed_gaps(
 
     // 2.–3. Which film components each piece's pixels fall into (indexed by piece root).
     let mut film_of: Vec<Vec<u32>> = vec![Vec::new(); n as usize];
-    for (y, row) in rows.iter().enumerate() {
+    for y in 0..h {
+        let row = rows.row(y);
         for &(a, b, o) in row {
             if let Some(l) = labels.first_in(y, a as usize, b as usize) {
                 let v = &mut film_of[piece[o as usize] as usize];
@@ -178,7 +175,8 @@ pub(super) fn closed_gaps(
     // with fewer runs (a pour joined to one track is never walked along). `rank` orders
     // the pieces by size; a piece searches for joined pieces of higher rank.
     let mut run_count = vec![0u32; n as usize];
-    for row in &rows {
+    for y in 0..h {
+        let row = rows.row(y);
         for &(_, _, o) in row {
             run_count[piece[o as usize] as usize] += 1;
         }
@@ -215,7 +213,7 @@ pub(super) fn closed_gaps(
         .fold(
             || (HashMap::new(), Vec::new()),
             |(mut best, mut edge): (HashMap<(u32, u32), Contact>, Vec<u32>), y| {
-                for &(a, b, o) in &rows[y] {
+                for &(a, b, o) in rows.row(y) {
                     let pa = piece[o as usize];
                     if !searches[pa as usize] {
                         continue;
@@ -225,7 +223,7 @@ pub(super) fn closed_gaps(
                     let (lo, hi) = (a as i64 - r, b as i64 - 1 + r);
                     let other_near = ((y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1))
                         .any(|ny| {
-                            let near = &rows[ny as usize];
+                            let near = rows.row(ny as usize);
                             let start = near.partition_point(|q| (q.1 as i64) <= lo);
                             near[start..]
                                 .iter()
@@ -243,17 +241,17 @@ pub(super) fn closed_gaps(
                     edge.clear();
                     edge.extend([a, b - 1]);
                     if y > 0 {
-                        uncovered(&rows[y - 1], &piece, pa, a, b, &mut edge);
+                        uncovered(rows.row(y - 1), &piece, pa, a, b, &mut edge);
                     }
                     if y + 1 < h {
-                        uncovered(&rows[y + 1], &piece, pa, a, b, &mut edge);
+                        uncovered(rows.row(y + 1), &piece, pa, a, b, &mut edge);
                     }
                     edge.sort_unstable();
                     edge.dedup();
                     for &x in &edge {
                         for ny in (y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1) {
                             let dy = (ny - y as i64) as f64 * area.mm_y;
-                            let near = &rows[ny as usize];
+                            let near = rows.row(ny as usize);
                             let start = near.partition_point(|q| (q.1 as i64) <= x as i64 - r);
                             for &(c, d, q) in &near[start..] {
                                 if c as i64 > x as i64 + r {

@@ -21,41 +21,118 @@ pub type Run = (u32, u32, u32);
 pub(crate) type PaintOp = (u32, u32, u32, bool);
 
 /// The design's runs on a film's rows and the pairs of objects that share a pixel.
-#[derive(Debug, Clone, Default, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DesignRuns {
-    /// Per row of the film, the runs in the film's own (possibly mirrored) columns, sorted
-    /// and disjoint. Object indices are positions in the rendered object list.
-    pub rows: Vec<Vec<Run>>,
+    /// Every row's runs, row after row, in the film's own (possibly mirrored) columns,
+    /// sorted and disjoint within a row. Object indices are positions in the rendered
+    /// object list.
+    runs: Vec<Run>,
+    /// Where each row's runs start in `runs`; one more entry than rows.
+    starts: Vec<usize>,
     /// Pairs (later object, earlier object) that share a pixel; a pair may repeat.
     pub overlaps: Vec<(u32, u32)>,
+}
+
+impl Default for DesignRuns {
+    fn default() -> Self {
+        DesignRuns {
+            runs: Vec::new(),
+            starts: vec![0],
+            overlaps: Vec::new(),
+        }
+    }
+}
+
+impl DesignRuns {
+    /// Rows held.
+    pub fn height(&self) -> usize {
+        self.starts.len() - 1
+    }
+
+    /// The runs of row `y` (empty beyond the last row).
+    pub fn row(&self, y: usize) -> &[Run] {
+        match (self.starts.get(y), self.starts.get(y + 1)) {
+            (Some(&a), Some(&b)) => &self.runs[a..b],
+            _ => &[],
+        }
+    }
+
+    /// Appends a row.
+    pub fn push_row(&mut self, runs: impl IntoIterator<Item = Run>) {
+        self.runs.extend(runs);
+        self.starts.push(self.runs.len());
+    }
+
+    /// Appends the rows of `other` below these, and its pairs.
+    pub fn append(&mut self, other: DesignRuns) {
+        let base = self.runs.len();
+        self.runs.extend(other.runs);
+        self.starts
+            .extend(other.starts[1..].iter().map(|&s| s + base));
+        self.overlaps.extend(other.overlaps);
+    }
+
+    /// Runs in all.
+    pub fn run_count(&self) -> usize {
+        self.runs.len()
+    }
 }
 
 /// Pairs of objects that share a pixel, each noted once in a while: a small table of the
 /// pairs seen lately keeps the same pair, met row after row, from being listed each time.
 pub(crate) struct Overlaps {
     pub pairs: Vec<(u32, u32)>,
-    recent: Vec<(u32, u32)>,
+    /// Pairs seen lately, `k << 32 | j`, by hash.
+    recent: Vec<u64>,
 }
 
 impl Overlaps {
-    /// Slots of the table: a row holds a few hundred pairs, met again on the next rows.
-    const RECENT: usize = 8192;
+    /// Slots of the table (the top 12 bits of the hash): a row holds a few hundred pairs,
+    /// met again on the next rows; 32 KB stays in the first-level cache.
+    const RECENT: usize = 4096;
 
     pub fn new() -> Overlaps {
         Overlaps {
             pairs: Vec::new(),
-            recent: vec![(u32::MAX, u32::MAX); Self::RECENT],
+            recent: vec![u64::MAX; Self::RECENT],
         }
     }
 
     fn note(&mut self, k: u32, j: u32) {
         // Fibonacci hashing of both indices; the top bits are the best mixed.
-        let h = (u64::from(k) << 32 | u64::from(j)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
-        let slot = (h >> 51) as usize % Self::RECENT;
-        if self.recent[slot] != (k, j) {
-            self.recent[slot] = (k, j);
+        let key = u64::from(k) << 32 | u64::from(j);
+        let slot = (key.wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 52) as usize;
+        if self.recent[slot] != key {
+            self.recent[slot] = key;
             self.pairs.push((k, j));
         }
+    }
+}
+
+/// Sorts events by their x (the high 32 bits); the order of events with the same x is left
+/// as it comes. Rows of up to 65,536 pixels take two counting passes over 8-bit digits (a
+/// least-significant-digit radix sort, stable per pass), wider ones a comparison sort.
+fn sort_by_x(events: &mut Vec<u64>, spare: &mut Vec<u64>) {
+    if events.len() < 64 || events.iter().any(|&v| v >> 48 != 0) {
+        events.sort_unstable();
+        return;
+    }
+    for shift in [32, 40] {
+        let mut count = [0usize; 257];
+        for &v in events.iter() {
+            count[((v >> shift) & 0xFF) as usize + 1] += 1;
+        }
+        for d in 1..257 {
+            count[d] += count[d - 1];
+        }
+        spare.clear();
+        spare.resize(events.len(), 0);
+        for &v in events.iter() {
+            let d = ((v >> shift) & 0xFF) as usize;
+            spare[count[d]] = v;
+            count[d] += 1;
+        }
+        std::mem::swap(events, spare);
     }
 }
 
@@ -63,17 +140,15 @@ impl Overlaps {
 /// memory between rows).
 #[derive(Default)]
 pub(crate) struct RowPainter {
-    /// Span ends, sorted: `x << 32 | op index`.
+    /// Span ends, sorted by x: `x << 32 | op index << 1 | end`.
     events: Vec<u64>,
+    /// The other buffer of the radix sort.
+    spare: Vec<u64>,
     /// The spans covering the current stretch of the row, by op index (drawing order).
     active: Vec<u32>,
 }
 
 impl RowPainter {
-    pub fn new() -> RowPainter {
-        RowPainter::default()
-    }
-
     /// Paints one row's spans (`ops`, in drawing order) and appends its runs to `out`; notes
     /// in `overlaps` the objects each Dark span paints over.
     ///
@@ -92,7 +167,7 @@ impl RowPainter {
                 self.events.push(u64::from(b) << 32 | i | 1);
             }
         }
-        self.events.sort_unstable();
+        sort_by_x(&mut self.events, &mut self.spare);
         self.active.clear();
         let active = &mut self.active;
         let mut e = 0;
@@ -155,7 +230,7 @@ mod tests {
     #[test]
     fn painting_joins_overlapping_objects_only() {
         let mut shared = Overlaps::new();
-        let mut painter = RowPainter::new();
+        let mut painter = RowPainter::default();
         let mut row = Vec::new();
         let ops = [
             (0, 10, 0, true),
@@ -228,7 +303,7 @@ mod tests {
                 .wrapping_add(1_442_695_040_888_963_407);
             (seed >> 33) % n
         };
-        let mut painter = RowPainter::new();
+        let mut painter = RowPainter::default();
         for _ in 0..500 {
             let mut ops = Vec::new();
             let mut k = 0u32;
@@ -259,5 +334,25 @@ mod tests {
             assert_eq!(runs, want_runs, "{ops:?}");
             assert_eq!(pairs, want_pairs, "{ops:?}");
         }
+    }
+
+    #[test]
+    fn radix_sort_orders_events_by_x() {
+        // 1,000 events with x up to 60,000 (two 8-bit digits): sorted by x they must agree
+        // with a comparison sort of their x values, and every event must still be there.
+        let mut seed = 99u64;
+        let mut events: Vec<u64> = (0..1000u64)
+            .map(|i| {
+                seed = seed.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1);
+                ((seed >> 33) % 60_000) << 32 | i << 1
+            })
+            .collect();
+        let mut want = events.clone();
+        want.sort_unstable();
+        sort_by_x(&mut events, &mut Vec::new());
+        let xs = |v: &[u64]| v.iter().map(|e| e >> 32).collect::<Vec<_>>();
+        assert_eq!(xs(&events), xs(&want));
+        events.sort_unstable();
+        assert_eq!(events, want);
     }
 }

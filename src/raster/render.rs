@@ -87,10 +87,10 @@ fn render_bands(
 ) -> (Bitmap, Option<DesignRuns>) {
     let mut bitmap = Bitmap::new(map.width, map.height);
     if map.width == 0 || map.height == 0 {
-        let design = DesignRuns {
-            rows: vec![Vec::new(); map.height],
-            overlaps: Vec::new(),
-        };
+        let mut design = DesignRuns::default();
+        for _ in 0..map.height {
+            design.push_row([]);
+        }
         return (bitmap, record.then_some(design));
     }
     // At least one row, at most the film (also keeps `words_per_row × band_rows` small).
@@ -115,31 +115,37 @@ fn render_bands(
     }
 
     let wpr = bitmap.words_per_row();
-    let paint = |(b, chunk): (usize, &mut [u64])| {
-        paint_band(chunk, b * band_rows, wpr, &bands[b], &prepared, map, record)
+    let paint = |work: &mut BandWork, (b, chunk): (usize, &mut [u64])| {
+        paint_band(
+            chunk,
+            b * band_rows,
+            wpr,
+            &bands[b],
+            &prepared,
+            map,
+            record,
+            work,
+        )
     };
     let words = bitmap.words_mut();
     let parts: Vec<Option<DesignRuns>> = if opts.parallel {
         words
             .par_chunks_mut(wpr * band_rows)
             .enumerate()
-            .map(paint)
+            .map_init(BandWork::default, paint)
             .collect()
     } else {
+        let mut work = BandWork::default();
         words
             .chunks_mut(wpr * band_rows)
             .enumerate()
-            .map(paint)
+            .map(|band| paint(&mut work, band))
             .collect()
     };
     let design = record.then(|| {
-        let mut all = DesignRuns {
-            rows: Vec::with_capacity(map.height),
-            overlaps: Vec::new(),
-        };
+        let mut all = DesignRuns::default();
         for part in parts.into_iter().flatten() {
-            all.rows.extend(part.rows);
-            all.overlaps.extend(part.overlaps);
+            all.append(part);
         }
         all
     });
@@ -170,7 +176,30 @@ fn prepare_object(o: &Object, map: &DeviceMap, index: u32) -> Option<Prepared> {
     })
 }
 
+/// Working memory of one thread's bands, kept from band to band.
+struct BandWork {
+    scratch: Scratch,
+    spans: Vec<Span>,
+    /// Per row of the band, the spans in drawing order (only when recording).
+    ops: Vec<Vec<PaintOp>>,
+    painter: RowPainter,
+    overlaps: Overlaps,
+}
+
+impl Default for BandWork {
+    fn default() -> Self {
+        BandWork {
+            scratch: Scratch::default(),
+            spans: Vec::new(),
+            ops: Vec::new(),
+            painter: RowPainter::default(),
+            overlaps: Overlaps::new(),
+        }
+    }
+}
+
 /// Paints one band's rows; with `record`, also returns the band's [`DesignRuns`].
+#[allow(clippy::too_many_arguments)]
 fn paint_band(
     chunk: &mut [u64],
     first_row: usize,
@@ -179,21 +208,29 @@ fn paint_band(
     prepared: &[Prepared],
     map: &DeviceMap,
     record: bool,
+    work: &mut BandWork,
 ) -> Option<DesignRuns> {
     let rows_here = chunk.len() / wpr;
     let end_row = first_row + rows_here;
-    let mut scratch = Scratch::default();
-    let mut spans: Vec<Span> = Vec::new();
-    // Per row of the band, the spans in drawing order (only when recording).
-    let mut ops: Vec<Vec<PaintOp>> = vec![Vec::new(); if record { rows_here } else { 0 }];
+    let BandWork {
+        scratch,
+        spans,
+        ops,
+        painter,
+        overlaps,
+    } = work;
+    if record {
+        ops.resize_with(rows_here.max(ops.len()), Vec::new);
+        ops.iter_mut().for_each(Vec::clear);
+    }
     let grid = map.grid();
     for &i in list {
         let p = &prepared[i as usize];
         for row in p.rows.0.max(first_row)..p.rows.1.min(end_row) {
             let y = grid.row_center_y(row);
-            shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
+            shapes::node_spans(&p.node, &grid, row, y, scratch, spans);
             let words = &mut chunk[(row - first_row) * wpr..(row - first_row + 1) * wpr];
-            for &(x0, x1) in &spans {
+            for &(x0, x1) in spans.iter() {
                 // Mirroring maps unmirrored column i to width − 1 − i, so span [x0, x1)
                 // becomes [width − x1, width − x0): the mirrored film is exactly the
                 // unmirrored one flipped.
@@ -210,20 +247,15 @@ fn paint_band(
         }
     }
     record.then(|| {
-        let mut painter = RowPainter::new();
-        let mut overlaps = Overlaps::new();
-        let rows = ops
-            .iter()
-            .map(|row_ops| {
-                let mut runs = Vec::new();
-                painter.paint_row(row_ops, &mut overlaps, &mut runs);
-                runs
-            })
-            .collect();
-        DesignRuns {
-            rows,
-            overlaps: overlaps.pairs,
+        let mut design = DesignRuns::default();
+        let mut runs = Vec::new();
+        for row_ops in &ops[..rows_here] {
+            runs.clear();
+            painter.paint_row(row_ops, overlaps, &mut runs);
+            design.push_row(runs.iter().copied());
         }
+        design.overlaps = std::mem::take(&mut overlaps.pairs);
+        design
     })
 }
 
@@ -265,7 +297,7 @@ mod tests {
             map.mirror = mirror;
             let (film, design) = render_with_design(&objects, &map, &RenderOptions::serial());
             assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
-            assert_eq!(design.rows.len(), map.height);
+            assert_eq!(design.height(), map.height);
             let mut dark = 0;
             for j in 0..map.height {
                 let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
@@ -284,7 +316,8 @@ mod tests {
                     } else {
                         None
                     };
-                    let run = design.rows[j]
+                    let run = design
+                        .row(j)
                         .iter()
                         .find(|r| r.0 as usize <= c && c < r.1 as usize);
                     assert_eq!(run.map(|r| r.2), want, "pixel ({c}, {j}), mirror {mirror}");

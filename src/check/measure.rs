@@ -170,9 +170,6 @@ pub(crate) fn components(bm: &Bitmap, max_pixels: usize) -> Vec<Component> {
 /// neighbouring rows, so the cost follows the number of runs, not of pixels.
 pub(crate) struct Labels {
     rows: Vec<Vec<(u32, u32, u32)>>,
-    /// The labelled pixels themselves: one bit test answers "no label here" (the common case
-    /// around residue) without searching a row's runs.
-    set: Bitmap,
 }
 
 /// The runs `[x0, x1)` of set pixels in one bitmap row (may end in the padding bits' column,
@@ -251,10 +248,7 @@ impl Labels {
                 r.2 = find(&mut parent, r.2);
             }
         }
-        Labels {
-            rows,
-            set: bm.clone(),
-        }
+        Labels { rows }
     }
 
     /// The label of pixel (x, y), if set.
@@ -271,32 +265,87 @@ impl Labels {
         row.get(i).filter(|r| (r.0 as usize) < x1).map(|r| r.2)
     }
 
-    /// How many different labels (up to `max`) the edge neighbours of `comp`'s pixels carry.
-    pub fn touching(&self, comp: &Component, max: usize) -> usize {
-        let mut seen: Vec<u32> = Vec::new();
-        for &(x, y) in &comp.pixels {
-            // Edge neighbours suffice: a thin part meets what it joins along its ends.
-            for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
-                let (nx, ny) = (x as i64 + dx, y as i64 + dy);
-                if nx < 0
-                    || ny < 0
-                    || nx as usize >= self.set.width()
-                    || ny as usize >= self.set.height()
-                    || !self.set.get(nx as usize, ny as usize)
-                {
-                    continue;
+    /// Which labels the components of `residue` (pixels without a label) touch along
+    /// pixel edges. One sweep over the runs of both, row by row: looking up each pixel's
+    /// neighbours instead jumps about the bitmaps and waits on memory.
+    pub fn touches(&self, residue: &Bitmap) -> Touches {
+        let parts = Labels::of(residue);
+        let ids = parts.rows.iter().map(Vec::len).sum();
+        let mut seen = vec![[NONE; 2]; ids];
+        // The first run of `row` ending after column x, from `j` on (x only grows).
+        let after = |row: &[(u32, u32, u32)], j: &mut usize, x: u32| {
+            while *j < row.len() && row[*j].1 <= x {
+                *j += 1;
+            }
+            *j
+        };
+        let empty = Vec::new();
+        for (y, row) in parts.rows.iter().enumerate() {
+            let here = self.rows.get(y).unwrap_or(&empty);
+            let above = y.checked_sub(1).and_then(|a| self.rows.get(a));
+            let below = self.rows.get(y + 1);
+            let (mut jh, mut ja, mut jb) = (0, 0, 0);
+            for &(a, b, root) in row {
+                let s = &mut seen[root as usize];
+                // Beside the run in its row: pixels a − 1 and b.
+                if a > 0 {
+                    let i = after(here, &mut jh, a - 1);
+                    if here.get(i).is_some_and(|r| r.0 < a) {
+                        note(s, here[i].2);
+                    }
                 }
-                if let Some(l) = self.at(nx as usize, ny as usize) {
-                    if !seen.contains(&l) {
-                        seen.push(l);
-                        if seen.len() >= max {
-                            return seen.len();
+                let i = after(here, &mut jh, b);
+                if here.get(i).is_some_and(|r| r.0 <= b) {
+                    note(s, here[i].2);
+                }
+                // Above and below: labelled runs overlapping columns a .. b.
+                for (other, j) in [(above, &mut ja), (below, &mut jb)] {
+                    if let Some(other) = other {
+                        let mut i = after(other, j, a);
+                        while i < other.len() && other[i].0 < b {
+                            note(s, other[i].2);
+                            i += 1;
                         }
                     }
                 }
             }
         }
-        seen.len()
+        let count = seen
+            .iter()
+            .map(|s| s.iter().filter(|&&l| l != NONE).count() as u8)
+            .collect();
+        Touches { parts, count }
+    }
+}
+
+/// No label (an empty slot of [`note`]).
+const NONE: u32 = u32::MAX;
+
+/// Adds label `l` to the (up to two) different labels seen.
+fn note(seen: &mut [u32; 2], l: u32) {
+    if seen.contains(&l) {
+        return;
+    }
+    if let Some(slot) = seen.iter_mut().find(|s| **s == NONE) {
+        *slot = l;
+    }
+}
+
+/// The labels each component of a residue touches: see [`Labels::touches`].
+pub(crate) struct Touches {
+    /// The residue's own components.
+    parts: Labels,
+    /// Per component (by its label): different labels touched, up to 2.
+    count: Vec<u8>,
+}
+
+impl Touches {
+    /// How many different labels (up to 2) the edge neighbours of `comp`'s pixels carry.
+    pub fn of(&self, comp: &Component) -> usize {
+        comp.pixels
+            .first()
+            .and_then(|&(x, y)| self.parts.at(x as usize, y as usize))
+            .map_or(0, |p| self.count[p as usize] as usize)
     }
 }
 
@@ -315,13 +364,29 @@ const WINDOW_BITS: i64 = 64;
 
 /// Which pixels around a probed pixel are inside the feature, as rows of bits: bit `i` of
 /// row `j` is pixel (x − r + i, y − r + j). The ring search reads it instead of the bitmap:
-/// a whole side of a ring is then one mask.
+/// a whole side of a ring is then one mask. Rows are read as the rings reach them (most
+/// searches end long before the window's edge).
 struct Window {
+    x: i64,
+    y: i64,
     r: i64,
+    /// Rows y − filled ..= y + filled are read.
+    filled: i64,
     rows: [u64; WINDOW_BITS as usize],
 }
 
 impl Window {
+    /// Reads the rows ring `k` needs.
+    fn grow(&mut self, probe: &Probe<'_>, k: i64) {
+        let n = 2 * self.r + 1;
+        while self.filled < k {
+            self.filled += 1;
+            for dy in [-self.filled, self.filled] {
+                self.rows[(self.r + dy) as usize] = probe.row_bits(self.x - self.r, self.y + dy, n);
+            }
+        }
+    }
+
     /// Outside-the-feature bits of row offset `dy` for offsets −k ..= k, at bits r−k ..= r+k.
     fn outside_span(&self, dy: i64, k: i64) -> u64 {
         let span = (u64::MAX >> (63 - 2 * k)) << (self.r - k);
@@ -375,14 +440,15 @@ impl Probe<'_> {
         if n > WINDOW_BITS {
             return None;
         }
-        let mut w = Window {
+        let mut rows = [0; WINDOW_BITS as usize];
+        rows[r as usize] = self.row_bits(x - r, y, n);
+        Some(Window {
+            x,
+            y,
             r,
-            rows: [0; WINDOW_BITS as usize],
-        };
-        for (j, row) in w.rows.iter_mut().take(n as usize).enumerate() {
-            *row = self.row_bits(x - r, y - r + j as i64, n);
-        }
-        Some(w)
+            filled: 0,
+            rows,
+        })
     }
 
     /// The distance (mm) from the centre of pixel (`x`, `y`) to the nearest centre of a pixel
@@ -396,7 +462,7 @@ impl Probe<'_> {
         y: i64,
         max_mm: f64,
         cone: Option<(f64, f64, f64)>,
-        window: Option<&Window>,
+        mut window: Option<&mut Window>,
     ) -> Option<(f64, f64, f64)> {
         let step = self.mm_x.min(self.mm_y);
         let rings = self.rings(max_mm);
@@ -409,15 +475,19 @@ impl Probe<'_> {
                 return;
             }
             if let Some((ux, uy, cos)) = cone {
-                if ex * ux + ey * uy < cos * d2.sqrt() {
+                // Behind the cone's axis fails the test below anyway (cos > 0); most
+                // candidates do, and need no square root then.
+                let along = ex * ux + ey * uy;
+                if along <= 0.0 || along < cos * d2.sqrt() {
                     return;
                 }
             }
             *best = Some((d2, ex, ey));
         };
         for k in 1..=rings {
-            match window {
+            match &mut window {
                 Some(win) if k <= win.r => {
+                    win.grow(self, k);
                     // The top and bottom rows, left to right, top before bottom at each dx.
                     let (top, bottom) = (win.outside_span(-k, k), win.outside_span(k, k));
                     let mut both = top | bottom;
@@ -474,11 +544,10 @@ impl Probe<'_> {
     pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
         let px = self.mm_x.max(self.mm_y);
         // Both searches stay within the first one's rings.
-        let window = self.window(x, y, self.rings(cap_mm + px));
-        let window = window.as_ref();
-        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None, window)?;
+        let mut window = self.window(x, y, self.rings(cap_mm + px));
+        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None, window.as_mut())?;
         let cone = Some((-ux, -uy, OPPOSITE_COS));
-        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone, window)?;
+        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone, window.as_mut())?;
         // Each outside centre lies half a pixel (along the direction) beyond the edge.
         let pixel_along = (ux * self.mm_x).hypot(uy * self.mm_y);
         let width = d1 + d2 - pixel_along;
@@ -561,7 +630,7 @@ mod tests {
                 s ^= s >> 7;
                 s ^= s << 17;
                 // Runs of similar pixels: flip state with probability 1/4.
-                if s % 4 == 0 {
+                if s.is_multiple_of(4) {
                     a.set(x, y, !a.get(x.saturating_sub(1), y));
                 } else if x > 0 {
                     a.set(x, y, a.get(x - 1, y));
@@ -609,20 +678,55 @@ mod tests {
             };
             for y in -2..42i64 {
                 for x in -2..92i64 {
-                    let win = p.window(x, y, p.rings(0.3));
+                    let mut win = p.window(x, y, p.rings(0.3));
                     assert!(win.is_some());
                     let near = p.nearest_outside(x, y, 0.3, None, None);
-                    assert_eq!(near, p.nearest_outside(x, y, 0.3, None, win.as_ref()));
+                    assert_eq!(near, p.nearest_outside(x, y, 0.3, None, win.as_mut()));
                     if let Some((_, ux, uy)) = near {
                         let cone = Some((-ux, -uy, OPPOSITE_COS));
                         assert_eq!(
                             p.nearest_outside(x, y, 0.2, cone, None),
-                            p.nearest_outside(x, y, 0.2, cone, win.as_ref()),
+                            p.nearest_outside(x, y, 0.2, cone, win.as_mut()),
                             "{x} {y}"
                         );
                     }
                 }
             }
         }
+    }
+
+    #[test]
+    fn touches_match_pixel_neighbours() {
+        // Reference: each component pixel's four edge neighbours looked up one by one.
+        let pieces = speckled(150, 30, 0x1234_5678_9abc_def1);
+        let mut residue = and_not(&speckled(150, 30, 0x0fed_cba9_8765_4321), &pieces);
+        residue.set(149, 29, true);
+        residue.set(149, 28, false);
+        let labels = Labels::of(&pieces);
+        let touches = labels.touches(&residue);
+        let comps = components(&residue, usize::MAX);
+        assert!(comps.len() > 20);
+        let mut counts = [0; 3];
+        for c in &comps {
+            let mut seen: Vec<u32> = Vec::new();
+            for &(x, y) in &c.pixels {
+                for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
+                    let (nx, ny) = (x as i64 + dx, y as i64 + dy);
+                    if nx < 0 || ny < 0 {
+                        continue;
+                    }
+                    if let Some(l) = labels.at(nx as usize, ny as usize) {
+                        if !seen.contains(&l) {
+                            seen.push(l);
+                        }
+                    }
+                }
+            }
+            let want = seen.len().min(2);
+            counts[want] += 1;
+            assert_eq!(touches.of(c), want, "component at {:?}", c.pixels[0]);
+        }
+        // The board has components of every kind: none, one and several pieces touched.
+        assert!(counts.iter().all(|&n| n > 0), "{counts:?}");
     }
 }

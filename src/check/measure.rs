@@ -141,9 +141,24 @@ pub(crate) fn components(bm: &Bitmap, max_pixels: usize) -> Vec<Component> {
                     pixels.push((px, py));
                     let (px, py) = (px as usize, py as usize);
                     let (x0, x1) = (px.saturating_sub(1), (px + 1).min(w - 1));
+                    // Columns px − 1 ..= px + 1 in one word (the usual case): their three bits
+                    // are taken and cleared at once (padding bits past the width are clear).
+                    let one_word = (1..63).contains(&(px % 64));
+                    let three = if one_word { 7u64 << (62 - px % 64) } else { 0 };
                     for ny in py.saturating_sub(1)..=(py + 1).min(h - 1) {
                         let row = &mut work[ny * wpr..(ny + 1) * wpr];
                         // Same order as a scan of dx = −1, 0, 1: the visit order stays put.
+                        if one_word {
+                            let word = &mut row[px / 64];
+                            let mut found = *word & three;
+                            *word &= !found;
+                            while found != 0 {
+                                let b = found.leading_zeros();
+                                found &= !(1u64 << (63 - b));
+                                stack.push(((px / 64 * 64) as u32 + b, ny as u32));
+                            }
+                            continue;
+                        }
                         for nx in x0..=x1 {
                             let bit = 1u64 << (63 - nx % 64);
                             let word = &mut row[nx / 64];

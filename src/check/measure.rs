@@ -116,35 +116,54 @@ impl Component {
 
 /// The 8-connected components of the set pixels of `bm`. Stops collecting after
 /// `max_pixels` pixels in all (what was found so far is returned).
+///
+/// A depth-first flood fill; each component's pixels are listed in the order it visits them
+/// (the width samples are taken along that order). Neighbours are read from the words of
+/// the three rows directly: this loop is where the check spends its time on busy boards.
 pub(crate) fn components(bm: &Bitmap, max_pixels: usize) -> Vec<Component> {
-    let mut work = bm.clone();
-    let (w, h) = (bm.width() as i64, bm.height() as i64);
+    let mut work = bm.words().to_vec();
+    let (w, h, wpr) = (bm.width(), bm.height(), bm.words_per_row());
     let mut out = Vec::new();
     let mut total = 0usize;
     let mut stack: Vec<(u32, u32)> = Vec::new();
-    for y in 0..bm.height() {
-        for wi in 0..bm.words_per_row() {
+    for y in 0..h {
+        for wi in 0..wpr {
             loop {
-                let word = work.row(y)[wi];
+                let word = work[y * wpr + wi];
                 if word == 0 {
                     break;
                 }
                 let x = wi * 64 + word.leading_zeros() as usize;
-                work.set(x, y, false);
+                work[y * wpr + wi] &= !(1u64 << (63 - x % 64));
                 stack.push((x as u32, y as u32));
                 let mut pixels = Vec::new();
                 while let Some((px, py)) = stack.pop() {
                     pixels.push((px, py));
-                    for dy in -1i64..=1 {
-                        for dx in -1i64..=1 {
-                            let (nx, ny) = (px as i64 + dx, py as i64 + dy);
-                            if nx >= 0
-                                && ny >= 0
-                                && nx < w
-                                && ny < h
-                                && work.get(nx as usize, ny as usize)
-                            {
-                                work.set(nx as usize, ny as usize, false);
+                    let (px, py) = (px as usize, py as usize);
+                    let (x0, x1) = (px.saturating_sub(1), (px + 1).min(w - 1));
+                    // Columns px − 1 ..= px + 1 in one word (the usual case): their three bits
+                    // are taken and cleared at once (padding bits past the width are clear).
+                    let one_word = (1..63).contains(&(px % 64));
+                    let three = if one_word { 7u64 << (62 - px % 64) } else { 0 };
+                    for ny in py.saturating_sub(1)..=(py + 1).min(h - 1) {
+                        let row = &mut work[ny * wpr..(ny + 1) * wpr];
+                        // Same order as a scan of dx = −1, 0, 1: the visit order stays put.
+                        if one_word {
+                            let word = &mut row[px / 64];
+                            let mut found = *word & three;
+                            *word &= !found;
+                            while found != 0 {
+                                let b = found.leading_zeros();
+                                found &= !(1u64 << (63 - b));
+                                stack.push(((px / 64 * 64) as u32 + b, ny as u32));
+                            }
+                            continue;
+                        }
+                        for nx in x0..=x1 {
+                            let bit = 1u64 << (63 - nx % 64);
+                            let word = &mut row[nx / 64];
+                            if *word & bit != 0 {
+                                *word &= !bit;
                                 stack.push((nx as u32, ny as u32));
                             }
                         }
@@ -173,28 +192,22 @@ pub(crate) struct Labels {
 pub(crate) fn row_runs(row: &[u64], out: &mut Vec<(u32, u32)>) {
     out.clear();
     let mut open: Option<usize> = None;
+    // The previous pixel, in the word's top bit: XOR with the word shifted down one pixel
+    // marks exactly the pixels where a run starts or ends, so the loop visits only those.
+    let mut prev = 0u64;
     for (wi, &w) in row.iter().enumerate() {
         let base = wi * 64;
-        if w == 0 || w == u64::MAX {
-            match (w == 0, open) {
-                (true, Some(s)) => {
-                    out.push((s as u32, base as u32));
-                    open = None;
-                }
-                (false, None) => open = Some(base),
-                _ => {}
-            }
-            continue;
-        }
-        for b in 0..64 {
-            let set = (w >> (63 - b)) & 1 == 1;
-            match (set, open) {
-                (true, None) => open = Some(base + b),
-                (false, Some(s)) => {
+        let mut edges = w ^ ((w >> 1) | prev);
+        prev = w << 63;
+        while edges != 0 {
+            let b = edges.leading_zeros() as usize;
+            edges &= !(1u64 << (63 - b));
+            match open {
+                None => open = Some(base + b),
+                Some(s) => {
                     out.push((s as u32, (base + b) as u32));
                     open = None;
                 }
-                _ => {}
             }
         }
     }
@@ -267,27 +280,87 @@ impl Labels {
         row.get(i).filter(|r| (r.0 as usize) < x1).map(|r| r.2)
     }
 
-    /// How many different labels (up to `max`) the edge neighbours of `comp`'s pixels carry.
-    pub fn touching(&self, comp: &Component, max: usize) -> usize {
-        let mut seen: Vec<u32> = Vec::new();
-        for &(x, y) in &comp.pixels {
-            // Edge neighbours suffice: a thin part meets what it joins along its ends.
-            for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
-                let (nx, ny) = (x as i64 + dx, y as i64 + dy);
-                if nx < 0 || ny < 0 {
-                    continue;
+    /// Which labels the components of `residue` (pixels without a label) touch along
+    /// pixel edges. One sweep over the runs of both, row by row: looking up each pixel's
+    /// neighbours instead jumps about the bitmaps and waits on memory.
+    pub fn touches(&self, residue: &Bitmap) -> Touches {
+        let parts = Labels::of(residue);
+        let ids = parts.rows.iter().map(Vec::len).sum();
+        let mut seen = vec![[NONE; 2]; ids];
+        // The first run of `row` ending after column x, from `j` on (x only grows).
+        let after = |row: &[(u32, u32, u32)], j: &mut usize, x: u32| {
+            while *j < row.len() && row[*j].1 <= x {
+                *j += 1;
+            }
+            *j
+        };
+        let empty = Vec::new();
+        for (y, row) in parts.rows.iter().enumerate() {
+            let here = self.rows.get(y).unwrap_or(&empty);
+            let above = y.checked_sub(1).and_then(|a| self.rows.get(a));
+            let below = self.rows.get(y + 1);
+            let (mut jh, mut ja, mut jb) = (0, 0, 0);
+            for &(a, b, root) in row {
+                let s = &mut seen[root as usize];
+                // Beside the run in its row: pixels a − 1 and b.
+                if a > 0 {
+                    let i = after(here, &mut jh, a - 1);
+                    if here.get(i).is_some_and(|r| r.0 < a) {
+                        note(s, here[i].2);
+                    }
                 }
-                if let Some(l) = self.at(nx as usize, ny as usize) {
-                    if !seen.contains(&l) {
-                        seen.push(l);
-                        if seen.len() >= max {
-                            return seen.len();
+                let i = after(here, &mut jh, b);
+                if here.get(i).is_some_and(|r| r.0 <= b) {
+                    note(s, here[i].2);
+                }
+                // Above and below: labelled runs overlapping columns a .. b.
+                for (other, j) in [(above, &mut ja), (below, &mut jb)] {
+                    if let Some(other) = other {
+                        let mut i = after(other, j, a);
+                        while i < other.len() && other[i].0 < b {
+                            note(s, other[i].2);
+                            i += 1;
                         }
                     }
                 }
             }
         }
-        seen.len()
+        let count = seen
+            .iter()
+            .map(|s| s.iter().filter(|&&l| l != NONE).count() as u8)
+            .collect();
+        Touches { parts, count }
+    }
+}
+
+/// No label (an empty slot of [`note`]).
+const NONE: u32 = u32::MAX;
+
+/// Adds label `l` to the (up to two) different labels seen.
+fn note(seen: &mut [u32; 2], l: u32) {
+    if seen.contains(&l) {
+        return;
+    }
+    if let Some(slot) = seen.iter_mut().find(|s| **s == NONE) {
+        *slot = l;
+    }
+}
+
+/// The labels each component of a residue touches: see [`Labels::touches`].
+pub(crate) struct Touches {
+    /// The residue's own components.
+    parts: Labels,
+    /// Per component (by its label): different labels touched, up to 2.
+    count: Vec<u8>,
+}
+
+impl Touches {
+    /// How many different labels (up to 2) the edge neighbours of `comp`'s pixels carry.
+    pub fn of(&self, comp: &Component) -> usize {
+        comp.pixels
+            .first()
+            .and_then(|&(x, y)| self.parts.at(x as usize, y as usize))
+            .map_or(0, |p| self.count[p as usize] as usize)
     }
 }
 
@@ -301,6 +374,45 @@ pub(crate) struct Probe<'a> {
     pub mm_y: f64,
 }
 
+/// The widest square window (pixels across) kept as one word per row.
+const WINDOW_BITS: i64 = 64;
+
+/// Which pixels around a probed pixel are inside the feature, as rows of bits: bit `i` of
+/// row `j` is pixel (x − r + i, y − r + j). The ring search reads it instead of the bitmap:
+/// a whole side of a ring is then one mask. Rows are read as the rings reach them (most
+/// searches end long before the window's edge).
+struct Window {
+    x: i64,
+    y: i64,
+    r: i64,
+    /// Rows y − filled ..= y + filled are read.
+    filled: i64,
+    rows: [u64; WINDOW_BITS as usize],
+}
+
+impl Window {
+    /// Reads the rows ring `k` needs.
+    fn grow(&mut self, probe: &Probe<'_>, k: i64) {
+        let n = 2 * self.r + 1;
+        while self.filled < k {
+            self.filled += 1;
+            for dy in [-self.filled, self.filled] {
+                self.rows[(self.r + dy) as usize] = probe.row_bits(self.x - self.r, self.y + dy, n);
+            }
+        }
+    }
+
+    /// Outside-the-feature bits of row offset `dy` for offsets −k ..= k, at bits r−k ..= r+k.
+    fn outside_span(&self, dy: i64, k: i64) -> u64 {
+        let span = (u64::MAX >> (63 - 2 * k)) << (self.r - k);
+        !self.rows[(self.r + dy) as usize] & span
+    }
+
+    fn outside(&self, dx: i64, dy: i64) -> bool {
+        (self.rows[(self.r + dy) as usize] >> (self.r + dx)) & 1 == 0
+    }
+}
+
 impl Probe<'_> {
     fn inside(&self, x: i64, y: i64) -> bool {
         if x < 0 || y < 0 || x >= self.bm.width() as i64 || y >= self.bm.height() as i64 {
@@ -309,44 +421,126 @@ impl Probe<'_> {
         self.bm.get(x as usize, y as usize)
     }
 
+    /// Rings searched for a distance up to `max_mm`.
+    fn rings(&self, max_mm: f64) -> i64 {
+        (max_mm / self.mm_x.min(self.mm_y)).ceil() as i64 + 1
+    }
+
+    /// The inside bits of pixels x0 .. x0 + n of row y (n ≤ 64), bit i for pixel x0 + i.
+    fn row_bits(&self, x0: i64, y: i64, n: i64) -> u64 {
+        let full = u64::MAX >> (64 - n);
+        let beyond = if self.outside { full } else { 0 };
+        if y < 0 || y >= self.bm.height() as i64 {
+            return beyond;
+        }
+        let (lo, hi) = (x0.max(0), (x0 + n).min(self.bm.width() as i64));
+        if lo >= hi {
+            return beyond;
+        }
+        let row = self.bm.row(y as usize);
+        let (q, r) = ((lo / 64) as usize, (lo % 64) as u32);
+        let mut word = row[q] << r;
+        if r > 0 && q + 1 < row.len() {
+            word |= row[q + 1] >> (64 - r);
+        }
+        // MSB-first pixels lo .. lo + 63 become bit i = pixel lo + i.
+        let bits = word.reverse_bits() & (u64::MAX >> (64 - (hi - lo)));
+        let at = lo - x0;
+        (beyond & !((u64::MAX >> (64 - (hi - lo))) << at)) | (bits << at)
+    }
+
+    /// The window of half-width `r` around (x, y), if it fits in a word.
+    fn window(&self, x: i64, y: i64, r: i64) -> Option<Window> {
+        let n = 2 * r + 1;
+        if n > WINDOW_BITS {
+            return None;
+        }
+        let mut rows = [0; WINDOW_BITS as usize];
+        rows[r as usize] = self.row_bits(x - r, y, n);
+        Some(Window {
+            x,
+            y,
+            r,
+            filled: 0,
+            rows,
+        })
+    }
+
     /// The distance (mm) from the centre of pixel (`x`, `y`) to the nearest centre of a pixel
     /// outside the feature, and the unit direction to it (mm space), searched up to `max_mm`.
     /// With `cone = Some((ux, uy, cos))`, only pixels whose direction is within the angle of
-    /// cosine `cos` about (ux, uy) count.
+    /// cosine `cos` about (ux, uy) count. Rings are searched outward, each in a fixed order;
+    /// of equally near pixels the first in that order wins (it sets the direction).
     fn nearest_outside(
         &self,
         x: i64,
         y: i64,
         max_mm: f64,
         cone: Option<(f64, f64, f64)>,
+        mut window: Option<&mut Window>,
     ) -> Option<(f64, f64, f64)> {
         let step = self.mm_x.min(self.mm_y);
-        let rings = (max_mm / step).ceil() as i64 + 1;
+        let rings = self.rings(max_mm);
         let mut best: Option<(f64, f64, f64)> = None; // (squared distance, ex, ey)
+                                                      // Pixel (dx, dy), known to be outside the feature, as a candidate.
+        let consider = |best: &mut Option<(f64, f64, f64)>, dx: i64, dy: i64| {
+            let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
+            let d2 = ex * ex + ey * ey;
+            if best.is_some_and(|b| d2 >= b.0) {
+                return;
+            }
+            if let Some((ux, uy, cos)) = cone {
+                // Behind the cone's axis fails the test below anyway (cos > 0); most
+                // candidates do, and need no square root then.
+                let along = ex * ux + ey * uy;
+                if along <= 0.0 || along < cos * d2.sqrt() {
+                    return;
+                }
+            }
+            *best = Some((d2, ex, ey));
+        };
         for k in 1..=rings {
-            let mut visit = |dx: i64, dy: i64| {
-                if self.inside(x + dx, y + dy) {
-                    return;
-                }
-                let (ex, ey) = (dx as f64 * self.mm_x, dy as f64 * self.mm_y);
-                let d2 = ex * ex + ey * ey;
-                if best.is_some_and(|b| d2 >= b.0) {
-                    return;
-                }
-                if let Some((ux, uy, cos)) = cone {
-                    if ex * ux + ey * uy < cos * d2.sqrt() {
-                        return;
+            match &mut window {
+                Some(win) if k <= win.r => {
+                    win.grow(self, k);
+                    // The top and bottom rows, left to right, top before bottom at each dx.
+                    let (top, bottom) = (win.outside_span(-k, k), win.outside_span(k, k));
+                    let mut both = top | bottom;
+                    while both != 0 {
+                        let i = both.trailing_zeros();
+                        both &= both - 1;
+                        let dx = i as i64 - win.r;
+                        if (top >> i) & 1 == 1 {
+                            consider(&mut best, dx, -k);
+                        }
+                        if (bottom >> i) & 1 == 1 {
+                            consider(&mut best, dx, k);
+                        }
+                    }
+                    for d in (-k + 1)..k {
+                        if win.outside(-k, d) {
+                            consider(&mut best, -k, d);
+                        }
+                        if win.outside(k, d) {
+                            consider(&mut best, k, d);
+                        }
                     }
                 }
-                best = Some((d2, ex, ey));
-            };
-            for d in -k..=k {
-                visit(d, -k);
-                visit(d, k);
-            }
-            for d in (-k + 1)..k {
-                visit(-k, d);
-                visit(k, d);
+                _ => {
+                    let mut visit = |dx: i64, dy: i64| {
+                        if !self.inside(x + dx, y + dy) {
+                            consider(&mut best, dx, dy);
+                        }
+                    };
+                    for d in -k..=k {
+                        visit(d, -k);
+                        visit(d, k);
+                    }
+                    for d in (-k + 1)..k {
+                        visit(-k, d);
+                        visit(k, d);
+                    }
+                }
             }
             // Every pixel of the next ring is at least (k + 1)·step away.
             let next = (k + 1) as f64 * step;
@@ -364,9 +558,11 @@ impl Probe<'_> {
     /// least `cap_mm` (the feature is not thin here). See the module docs.
     pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
         let px = self.mm_x.max(self.mm_y);
-        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None)?;
+        // Both searches stay within the first one's rings.
+        let mut window = self.window(x, y, self.rings(cap_mm + px));
+        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None, window.as_mut())?;
         let cone = Some((-ux, -uy, OPPOSITE_COS));
-        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone)?;
+        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone, window.as_mut())?;
         // Each outside centre lies half a pixel (along the direction) beyond the edge.
         let pixel_along = (ux * self.mm_x).hypot(uy * self.mm_y);
         let width = d1 + d2 - pixel_along;
@@ -436,5 +632,116 @@ mod tests {
         assert_eq!(c.len(), 2);
         assert!(any_set(&a, 7, 8, 7, 8));
         assert!(!any_set(&a, 3, 7, 0, 10));
+    }
+
+    /// A fixed pseudo-random bitmap (xorshift64), dense enough to have runs and holes of all
+    /// lengths, including runs across word boundaries.
+    fn speckled(w: usize, h: usize, seed: u64) -> Bitmap {
+        let mut a = Bitmap::new(w, h);
+        let mut s = seed;
+        for y in 0..h {
+            for x in 0..w {
+                s ^= s << 13;
+                s ^= s >> 7;
+                s ^= s << 17;
+                // Runs of similar pixels: flip state with probability 1/4.
+                if s.is_multiple_of(4) {
+                    a.set(x, y, !a.get(x.saturating_sub(1), y));
+                } else if x > 0 {
+                    a.set(x, y, a.get(x - 1, y));
+                }
+            }
+        }
+        a
+    }
+
+    #[test]
+    fn row_runs_match_pixel_scan() {
+        // Reference: the runs read off pixel by pixel, the definition of a run.
+        let a = speckled(200, 30, 0x9e37_79b9_7f4a_7c15);
+        let mut runs = Vec::new();
+        for y in 0..a.height() {
+            let mut want = Vec::new();
+            let mut x = 0;
+            while x < a.width() {
+                if a.get(x, y) {
+                    let s = x;
+                    while x < a.width() && a.get(x, y) {
+                        x += 1;
+                    }
+                    want.push((s as u32, x as u32));
+                } else {
+                    x += 1;
+                }
+            }
+            row_runs(a.row(y), &mut runs);
+            assert_eq!(runs, want, "row {y}");
+        }
+    }
+
+    #[test]
+    fn window_search_matches_pixel_search() {
+        // The word window must find the same outside pixel (distance and direction, ties
+        // included) as reading the bitmap pixel by pixel, also at the bitmap's borders.
+        let a = speckled(90, 40, 0x2545_f491_4f6c_dd1d);
+        for outside in [false, true] {
+            let p = Probe {
+                bm: &a,
+                outside,
+                mm_x: 0.02,
+                mm_y: 0.025,
+            };
+            for y in -2..42i64 {
+                for x in -2..92i64 {
+                    let mut win = p.window(x, y, p.rings(0.3));
+                    assert!(win.is_some());
+                    let near = p.nearest_outside(x, y, 0.3, None, None);
+                    assert_eq!(near, p.nearest_outside(x, y, 0.3, None, win.as_mut()));
+                    if let Some((_, ux, uy)) = near {
+                        let cone = Some((-ux, -uy, OPPOSITE_COS));
+                        assert_eq!(
+                            p.nearest_outside(x, y, 0.2, cone, None),
+                            p.nearest_outside(x, y, 0.2, cone, win.as_mut()),
+                            "{x} {y}"
+                        );
+                    }
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn touches_match_pixel_neighbours() {
+        // Reference: each component pixel's four edge neighbours looked up one by one.
+        let pieces = speckled(150, 30, 0x1234_5678_9abc_def1);
+        let mut residue = and_not(&speckled(150, 30, 0x0fed_cba9_8765_4321), &pieces);
+        residue.set(149, 29, true);
+        residue.set(149, 28, false);
+        let labels = Labels::of(&pieces);
+        let touches = labels.touches(&residue);
+        let comps = components(&residue, usize::MAX);
+        assert!(comps.len() > 20);
+        let mut counts = [0; 3];
+        for c in &comps {
+            let mut seen: Vec<u32> = Vec::new();
+            for &(x, y) in &c.pixels {
+                for (dx, dy) in [(1i64, 0i64), (-1, 0), (0, 1), (0, -1)] {
+                    let (nx, ny) = (x as i64 + dx, y as i64 + dy);
+                    if nx < 0 || ny < 0 {
+                        continue;
+                    }
+                    if let Some(l) = labels.at(nx as usize, ny as usize) {
+                        if !seen.contains(&l) {
+                            seen.push(l);
+                        }
+                    }
+                }
+            }
+            let want = seen.len().min(2);
+            counts[want] += 1;
+            assert_eq!(touches.of(c), want, "component at {:?}", c.pixels[0]);
+        }
+        // The board has components of every kind: none, one and several pieces touched.
+        assert!(counts.iter().all(|&n| n > 0), "{counts:?}");
     }
 }

@@ -282,16 +282,21 @@ fn thin_parts(
     };
     let cap = MEASURE_FACTOR * min_mm;
     let comps = components(&residue, MAX_RESIDUE_PIXELS);
+    let touches = match (&keep, &opened_labels) {
+        (Keep::Separates(l), _) => Some(l.touches(&residue)),
+        (Keep::Bridges, Some(l)) => Some(l.touches(&residue)),
+        (Keep::Bridges, None) => None,
+    };
     comps
         .par_iter()
         .filter_map(|c| {
-            let (wanted, dangling) = match (&keep, &opened_labels) {
-                (Keep::Separates(l), _) => (l.touching(c, 2) >= 2, false),
-                (Keep::Bridges, Some(l)) => {
-                    let one = l.touching(c, 2) == 1;
+            let (wanted, dangling) = match (&keep, &touches) {
+                (Keep::Separates(_), Some(t)) => (t.of(c) >= 2, false),
+                (Keep::Bridges, Some(t)) => {
+                    let one = t.of(c) == 1;
                     (!one, one)
                 }
-                (Keep::Bridges, None) => (true, false),
+                _ => (true, false),
             };
             if !wanted && !dangling {
                 return None;

@@ -26,7 +26,7 @@
 
 use super::bitmap::{last_word_mask, Bitmap};
 use super::render::RenderOptions;
-use super::shift::dilate_row;
+use super::shift::{dilate_row, or_shift_left, or_shift_right};
 use rayon::prelude::*;
 
 /// Pixel pitch of a film in µm along x and y.
@@ -218,8 +218,16 @@ pub fn dilate_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderO
     let mut out = Bitmap::new(w, h);
     let wpr = out.words_per_row();
     let band_rows = opts.band_rows.clamp(1, h);
+    // Few groups and a disc no taller than a band: each input row is dilated horizontally
+    // once per group for the whole band, instead of once per output row and group.
+    let ky = disc.half_height().unwrap_or(0);
+    let shared = groups.len() <= MAX_SHARED_GROUPS && ky <= band_rows;
     let band = |(b, chunk): (usize, &mut [u64])| {
-        dilate_band(bitmap, &groups, b * band_rows, chunk, wpr);
+        if shared {
+            dilate_band_shared(bitmap, &groups, b * band_rows, chunk, wpr);
+        } else {
+            dilate_band(bitmap, &groups, b * band_rows, chunk, wpr);
+        }
     };
     let words = out.words_mut();
     if opts.parallel {
@@ -243,6 +251,77 @@ fn kernel_groups(disc: &DiscKernel) -> Vec<(usize, usize, usize)> {
         }
     }
     groups
+}
+
+/// Groups up to which [`dilate_band_shared`] keeps one dilated copy of the band per group.
+const MAX_SHARED_GROUPS: usize = 16;
+
+/// Widens a horizontal dilation of half-width `from` to `to` in place (the doubling of
+/// [`dilate_row`] continued: each step by at most the current half-width + 1 leaves no hole).
+fn widen_row(row: &mut [u64], from: usize, to: usize, scratch: &mut [u64]) {
+    let mut h = from;
+    while h < to {
+        let step = (h + 1).min(to - h);
+        scratch[..row.len()].copy_from_slice(row);
+        or_shift_left(&scratch[..row.len()], step, row);
+        or_shift_right(&scratch[..row.len()], step, row);
+        h += step;
+    }
+}
+
+/// [`dilate_band`] with the horizontal dilations shared between output rows: every input
+/// row the band reads is dilated once per group (smallest half-width first, each widened
+/// from the last), then each output row ORs the rows its disc covers. Same result.
+fn dilate_band_shared(
+    input: &Bitmap,
+    groups: &[(usize, usize, usize)],
+    first_row: usize,
+    chunk: &mut [u64],
+    wpr: usize,
+) {
+    let h = input.height();
+    let mask = last_word_mask(input.width());
+    let ky = groups.last().map_or(0, |g| g.1);
+    let out_rows = chunk.len() / wpr;
+    let lo = first_row.saturating_sub(ky);
+    let hi = (first_row + out_rows + ky).min(h);
+    // Half-widths fall as |j| grows: the last group has the smallest.
+    let mut wide: Vec<Vec<u64>> = vec![Vec::new(); groups.len()];
+    let mut scratch = vec![0u64; wpr];
+    let mut from = 0;
+    for gi in (0..groups.len()).rev() {
+        let k = groups[gi].2;
+        let mut rows = match wide.get(gi + 1) {
+            Some(prev) if !prev.is_empty() => prev.clone(),
+            _ => input.words()[lo * wpr..hi * wpr].to_vec(),
+        };
+        for row in rows.chunks_mut(wpr) {
+            widen_row(row, from, k, &mut scratch);
+        }
+        from = k;
+        wide[gi] = rows;
+    }
+    for (r, out_row) in chunk.chunks_mut(wpr).enumerate() {
+        let y = first_row + r;
+        for (&(j0, j1, _), rows) in groups.iter().zip(&wide) {
+            for j in j0..=j1 {
+                for yy in [y.checked_sub(j), (j > 0).then_some(y + j)]
+                    .into_iter()
+                    .flatten()
+                {
+                    if yy < h {
+                        let src = &rows[(yy - lo) * wpr..(yy - lo + 1) * wpr];
+                        for (o, s) in out_row.iter_mut().zip(src) {
+                            *o |= *s;
+                        }
+                    }
+                }
+            }
+        }
+        if let Some(last) = out_row.last_mut() {
+            *last &= mask;
+        }
+    }
 }
 
 fn dilate_band(
@@ -313,5 +392,51 @@ mod tests {
         // TRADE.md worked example: +10 µm at 1200 dpi realizes 0 px.
         assert!(rounds_to_zero(10.0, Pitch::from_dpi(1200.0, 1200.0)));
         assert!(!rounds_to_zero(21.2, Pitch::from_dpi(1200.0, 1200.0)));
+    }
+
+    #[test]
+    fn shared_bands_equal_per_row_dilation() {
+        // The per-row method is the reference; widths leave padding bits in the last word,
+        // bands cut the disc's reach, and pitches give groups of several rows.
+        let mut seed = 0x9e37_79b9_7f4a_7c15u64;
+        for (w, h) in [(150usize, 70usize), (64, 33), (1, 20)] {
+            let mut src = Bitmap::new(w, h);
+            for y in 0..h {
+                for x in 0..w {
+                    seed ^= seed << 13;
+                    seed ^= seed >> 7;
+                    seed ^= seed << 17;
+                    src.set(x, y, seed.is_multiple_of(23));
+                }
+            }
+            for (r, pitch) in [
+                (121.2, Pitch::from_dpi(1200.0, 1200.0)),
+                (60.0, Pitch::from_dpi(1200.0, 600.0)),
+                (
+                    95.0,
+                    Pitch {
+                        x_um: 10.0,
+                        y_um: 20.0,
+                    },
+                ),
+            ] {
+                let disc = DiscKernel::new(r, pitch, w, h);
+                let groups = kernel_groups(&disc);
+                let wpr = src.words_per_row();
+                for band_rows in [5usize, 16, 70] {
+                    let mut a = vec![0u64; wpr * h];
+                    let mut b = vec![0u64; wpr * h];
+                    for (i, (ca, cb)) in a
+                        .chunks_mut(wpr * band_rows)
+                        .zip(b.chunks_mut(wpr * band_rows))
+                        .enumerate()
+                    {
+                        dilate_band(&src, &groups, i * band_rows, ca, wpr);
+                        dilate_band_shared(&src, &groups, i * band_rows, cb, wpr);
+                    }
+                    assert_eq!(a, b, "{w}×{h} r {r} band {band_rows}");
+                }
+            }
+        }
     }
 }

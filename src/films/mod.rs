@@ -5,9 +5,11 @@
 //! - [`select`]: which files become films, and the board's extents;
 //! - [`plan`]: each film's recipe and label, and rendering them;
 //! - [`sheets`]: laying the films out on sheets and composing the sheets;
+//! - [`background`]: the process check's lower-priority threads beside the sheets;
 //! - [`staged`]: the output folder, written whole or not at all;
 //! - [`summary`]: the summary, the manifest's records and the terminal table.
 
+mod background;
 pub mod plan;
 pub mod select;
 pub mod sheets;
@@ -78,22 +80,25 @@ pub fn run(
     let (films, frame, warnings) =
         make_films_checked(board, profile, job, &opts.board_name, &opts.date)?;
     // The process check and the proof picture run beside the sheets and the PDF, which are
-    // mostly single-threaded compression.
+    // mostly single-threaded compression, at a lower priority (see `background`).
     std::thread::scope(|scope| {
         let checking = scope.spawn(|| {
-            let mut check = crate::check::check_films(&films, board, &frame.board, &profile.limits);
-            crate::proof::write_board_proof(
-                &staged.path("proof.png"),
-                "proof.png",
-                &opts.board_name,
-                &films,
-                board,
-                &frame,
-                profile.artwork.target_size_mm,
-                &mut check,
-            )
-            .map(|()| check)
-            .map_err(|e| FilmsError::Output(e.to_string()))
+            background::in_background(|| {
+                let mut check =
+                    crate::check::check_films(&films, board, &frame.board, &profile.limits);
+                crate::proof::write_board_proof(
+                    &staged.path("proof.png"),
+                    "proof.png",
+                    &opts.board_name,
+                    &films,
+                    board,
+                    &frame,
+                    profile.artwork.target_size_mm,
+                    &mut check,
+                )
+                .map(|()| check)
+                .map_err(|e| FilmsError::Output(e.to_string()))
+            })
         });
         let written = write_sheets(
             board,

@@ -7,10 +7,10 @@
 //!
 //! 1. **Design pieces.** The layer's objects painted in order at the film's pixel grid into
 //!    runs that remember which object painted each pixel last (Clear objects erase;
-//!    `crate::raster::DesignRuns`, recorded while the film is rendered). Two objects belong
-//!    to one piece when they share a pixel centre: a point inside both shapes, so they
-//!    overlap in the design. Objects that only come within a pixel of each other stay
-//!    separate, whichever way the grid falls — that is what finds sub-pixel gaps.
+//!    `crate::raster::DesignRuns`, from the spans recorded while the film was rendered).
+//!    Two objects belong to one piece when they share a pixel centre: a point inside both
+//!    shapes, so they overlap in the design. Objects that only come within a pixel of each
+//!    other stay separate, whichever way the grid falls — that is what finds sub-pixel gaps.
 //! 2. **Film pieces.** The film's copper components (union-find over pixel runs).
 //! 3. **Joins.** Design pieces whose pixels fall into one film component are joined on the
 //!    film. Where two of them come closest (the nearest pair of their pixels within the
@@ -131,15 +131,13 @@ pub(super) fn closed_gaps(
 
     // 1. Design pieces: objects painted in order, joined where they share a pixel. The films
     // job records them while rendering the film; otherwise the layer is painted again.
-    let painted;
     let design = match input.design {
-        Some(d) => d,
-        None => {
-            painted = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
-            &painted
-        }
+        Some(spans) => spans.runs(),
+        None => render_with_design(&image.objects, input.map, &RenderOptions::default())
+            .1
+            .runs(),
     };
-    let rows = crop_rows(design, area, w, h);
+    let rows = crop_rows(&design, area, w, h);
     let n = image.objects.len() as u32;
     let mut uf = Uf((0..n).collect());
     for &(a, b) in &design.overlaps {

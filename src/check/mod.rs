@@ -196,10 +196,10 @@ pub struct FilmInput<'a> {
     pub image: Option<&'a LayerImage>,
     /// Drill files whose holes sit on this film (copper films).
     pub drills: &'a [&'a DrillFile],
-    /// Which layer object each pixel shows, when recorded while rendering the film
+    /// The layer's spans, when recorded while rendering the film
     /// (`crate::film::compose::render_film_recording`); otherwise the closed-gap search
-    /// paints the layer again.
-    pub design: Option<&'a crate::raster::DesignRuns>,
+    /// renders the layer again.
+    pub design: Option<&'a crate::raster::DesignSpans>,
 }
 
 /// How far beyond the board's extents the check looks, mm: the film keeps layer artwork up

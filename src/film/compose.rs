@@ -16,7 +16,7 @@ use crate::excellon::DrillFile;
 use crate::image::{Bounds, LayerImage, Object, Point, Polarity, Shape};
 use crate::process::{DrillMarkStyle, FilmRecipe};
 use crate::raster::morphology::{self, Pitch, RealizedOffset};
-use crate::raster::{render, render_with_design, Bitmap, DesignRuns, DeviceMap, RenderOptions};
+use crate::raster::{render, render_with_design, Bitmap, DesignSpans, DeviceMap, RenderOptions};
 use serde::Serialize;
 
 /// Sizes of the artwork umbra adds around the board (mm).
@@ -262,10 +262,10 @@ pub struct RenderedFilm {
     /// (`crate::check` measures rings on the finished film and is the one source of ring
     /// findings wherever it runs; the films job therefore renders without this check).
     pub ring_warning: Option<String>,
-    /// Which layer object each pixel of the layer image shows, before drill marks, artwork
-    /// and edge offset (film columns), for the process check's closed gaps; only when asked
-    /// for ([`render_film_recording`]).
-    pub design: Option<DesignRuns>,
+    /// The layer image's spans as rendered (film columns, before drill marks, artwork and
+    /// edge offset), for the process check's closed gaps; only when asked for
+    /// ([`render_film_recording`]).
+    pub design: Option<DesignSpans>,
 }
 
 /// The device map of a film: the frame's film area at the recipe's resolution, with the
@@ -382,9 +382,9 @@ pub fn render_film_on(
     render_film_full(job, map, min_annular_ring_mm, false)
 }
 
-/// [`render_film_on`] without the ring check, also recording which layer object each pixel
-/// shows ([`RenderedFilm::design`]) from the same spans, for the process check. Costs the
-/// painting of the runs, not a second render.
+/// [`render_film_on`] without the ring check, also recording the layer's spans
+/// ([`RenderedFilm::design`]) for the process check: a copy of what the renderer computes,
+/// not a second render.
 pub fn render_film_recording(job: &FilmJob<'_>, map: DeviceMap) -> RenderedFilm {
     render_film_full(job, map, None, true)
 }

@@ -78,6 +78,81 @@ impl DesignRuns {
     }
 }
 
+/// The layer's spans as the renderer painted them: per row, in drawing order. Recording them
+/// costs the renderer little; [`DesignSpans::runs`] paints them into [`DesignRuns`] for
+/// whoever needs those (the process check, which runs beside the sheets of the films job).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DesignSpans {
+    ops: Vec<PaintOp>,
+    /// Where each row's spans start in `ops`; one more entry than rows.
+    starts: Vec<usize>,
+}
+
+impl Default for DesignSpans {
+    fn default() -> Self {
+        DesignSpans {
+            ops: Vec::new(),
+            starts: vec![0],
+        }
+    }
+}
+
+/// Rows painted together by one task of [`DesignSpans::runs`].
+const ROWS_PER_TASK: usize = 64;
+
+impl DesignSpans {
+    /// Rows held.
+    pub fn height(&self) -> usize {
+        self.starts.len() - 1
+    }
+
+    fn row(&self, y: usize) -> &[PaintOp] {
+        &self.ops[self.starts[y]..self.starts[y + 1]]
+    }
+
+    /// Appends a row's spans (in drawing order).
+    pub(crate) fn push_row(&mut self, ops: &[PaintOp]) {
+        self.ops.extend_from_slice(ops);
+        self.starts.push(self.ops.len());
+    }
+
+    /// Appends the rows of `other` below these.
+    pub(crate) fn append(&mut self, other: DesignSpans) {
+        let base = self.ops.len();
+        self.ops.extend(other.ops);
+        self.starts
+            .extend(other.starts[1..].iter().map(|&s| s + base));
+    }
+
+    /// Paints every row: the runs and the pairs of objects that share a pixel. Rows are
+    /// painted in parallel groups; the result does not depend on the grouping.
+    pub fn runs(&self) -> DesignRuns {
+        use rayon::prelude::*;
+        let h = self.height();
+        let parts: Vec<DesignRuns> = (0..h.div_ceil(ROWS_PER_TASK))
+            .into_par_iter()
+            .map_init(
+                || (RowPainter::default(), Overlaps::new(), Vec::new()),
+                |(painter, overlaps, runs), t| {
+                    let mut part = DesignRuns::default();
+                    for y in t * ROWS_PER_TASK..((t + 1) * ROWS_PER_TASK).min(h) {
+                        runs.clear();
+                        painter.paint_row(self.row(y), overlaps, runs);
+                        part.push_row(runs.iter().copied());
+                    }
+                    part.overlaps = std::mem::take(&mut overlaps.pairs);
+                    part
+                },
+            )
+            .collect();
+        let mut all = DesignRuns::default();
+        for part in parts {
+            all.append(part);
+        }
+        all
+    }
+}
+
 /// Pairs of objects that share a pixel, each noted once in a while: a small table of the
 /// pairs seen lately keeps the same pair, met row after row, from being listed each time.
 pub(crate) struct Overlaps {

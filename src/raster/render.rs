@@ -10,7 +10,7 @@
 //! band. No 8-bit or RGBA canvas ever exists.
 
 use super::bitmap::{fill_row_span, Bitmap};
-use super::design::{DesignRuns, Overlaps, PaintOp, RowPainter};
+use super::design::{DesignSpans, PaintOp};
 use super::device::DeviceMap;
 use super::shapes::{self, Node, Scratch};
 use super::spans::Span;
@@ -69,12 +69,13 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
     render_bands(objects, map, opts, false).0
 }
 
-/// [`render`], and which object each dark pixel shows ([`DesignRuns`]) from the same spans.
+/// [`render`], and the spans it painted, per row in drawing order ([`DesignSpans`]): which
+/// object each dark pixel shows, once painted into runs.
 pub fn render_with_design(
     objects: &[Object],
     map: &DeviceMap,
     opts: &RenderOptions,
-) -> (Bitmap, DesignRuns) {
+) -> (Bitmap, DesignSpans) {
     let (bitmap, design) = render_bands(objects, map, opts, true);
     (bitmap, design.unwrap_or_default())
 }
@@ -84,12 +85,12 @@ fn render_bands(
     map: &DeviceMap,
     opts: &RenderOptions,
     record: bool,
-) -> (Bitmap, Option<DesignRuns>) {
+) -> (Bitmap, Option<DesignSpans>) {
     let mut bitmap = Bitmap::new(map.width, map.height);
     if map.width == 0 || map.height == 0 {
-        let mut design = DesignRuns::default();
+        let mut design = DesignSpans::default();
         for _ in 0..map.height {
-            design.push_row([]);
+            design.push_row(&[]);
         }
         return (bitmap, record.then_some(design));
     }
@@ -128,7 +129,7 @@ fn render_bands(
         )
     };
     let words = bitmap.words_mut();
-    let parts: Vec<Option<DesignRuns>> = if opts.parallel {
+    let parts: Vec<Option<DesignSpans>> = if opts.parallel {
         words
             .par_chunks_mut(wpr * band_rows)
             .enumerate()
@@ -143,7 +144,7 @@ fn render_bands(
             .collect()
     };
     let design = record.then(|| {
-        let mut all = DesignRuns::default();
+        let mut all = DesignSpans::default();
         for part in parts.into_iter().flatten() {
             all.append(part);
         }
@@ -177,28 +178,15 @@ fn prepare_object(o: &Object, map: &DeviceMap, index: u32) -> Option<Prepared> {
 }
 
 /// Working memory of one thread's bands, kept from band to band.
+#[derive(Default)]
 struct BandWork {
     scratch: Scratch,
     spans: Vec<Span>,
     /// Per row of the band, the spans in drawing order (only when recording).
     ops: Vec<Vec<PaintOp>>,
-    painter: RowPainter,
-    overlaps: Overlaps,
 }
 
-impl Default for BandWork {
-    fn default() -> Self {
-        BandWork {
-            scratch: Scratch::default(),
-            spans: Vec::new(),
-            ops: Vec::new(),
-            painter: RowPainter::default(),
-            overlaps: Overlaps::new(),
-        }
-    }
-}
-
-/// Paints one band's rows; with `record`, also returns the band's [`DesignRuns`].
+/// Paints one band's rows; with `record`, also returns the band's [`DesignSpans`].
 #[allow(clippy::too_many_arguments)]
 fn paint_band(
     chunk: &mut [u64],
@@ -209,15 +197,13 @@ fn paint_band(
     map: &DeviceMap,
     record: bool,
     work: &mut BandWork,
-) -> Option<DesignRuns> {
+) -> Option<DesignSpans> {
     let rows_here = chunk.len() / wpr;
     let end_row = first_row + rows_here;
     let BandWork {
         scratch,
         spans,
         ops,
-        painter,
-        overlaps,
     } = work;
     if record {
         ops.resize_with(rows_here.max(ops.len()), Vec::new);
@@ -247,14 +233,10 @@ fn paint_band(
         }
     }
     record.then(|| {
-        let mut design = DesignRuns::default();
-        let mut runs = Vec::new();
+        let mut design = DesignSpans::default();
         for row_ops in &ops[..rows_here] {
-            runs.clear();
-            painter.paint_row(row_ops, overlaps, &mut runs);
-            design.push_row(runs.iter().copied());
+            design.push_row(row_ops);
         }
-        design.overlaps = std::mem::take(&mut overlaps.pairs);
         design
     })
 }
@@ -295,7 +277,8 @@ mod tests {
         for mirror in [false, true] {
             let mut map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
             map.mirror = mirror;
-            let (film, design) = render_with_design(&objects, &map, &RenderOptions::serial());
+            let (film, spans) = render_with_design(&objects, &map, &RenderOptions::serial());
+            let design = spans.runs();
             assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
             assert_eq!(design.height(), map.height);
             let mut dark = 0;

@@ -201,6 +201,47 @@ pub struct Board {
     pub job_name: Option<String>,
 }
 
+impl Board {
+    /// A name for a board whose job file gives none, from what the user passed: a single
+    /// folder, archive or file gives its own name; several files give the part their names
+    /// share (`wren-node.top.gbr`, `wren-node.bottom.gbr` → `wren-node`), counting only the
+    /// files read as Gerber or drill files (a licence or a note beside them says nothing of
+    /// the board), else the first file's name.
+    pub fn default_name(&self, inputs: &[std::path::PathBuf]) -> String {
+        let stem = |p: &Path| p.file_stem().map(|s| s.to_string_lossy().to_string());
+        if let [one] = inputs {
+            return stem(one).unwrap_or_else(|| "board".into());
+        }
+        let fabrication: Vec<String> = self
+            .files
+            .iter()
+            .filter(|f| matches!(f.content, Content::Gerber(_) | Content::Drill(_)))
+            .filter_map(|f| stem(Path::new(&f.base_name)))
+            .collect();
+        let shared = fabrication.split_first().map(|(first, rest)| {
+            let mut prefix: Vec<char> = first.chars().collect();
+            for other in rest {
+                let same = prefix
+                    .iter()
+                    .zip(other.chars())
+                    .take_while(|(a, b)| **a == *b)
+                    .count();
+                prefix.truncate(same);
+            }
+            let prefix: String = prefix.into_iter().collect();
+            prefix.trim_end_matches(['-', '_', '.', ' ']).to_string()
+        });
+        match shared {
+            Some(name) if name.chars().count() >= 3 => name,
+            _ => fabrication
+                .first()
+                .cloned()
+                .or_else(|| inputs.first().and_then(|p| stem(p)))
+                .unwrap_or_else(|| "board".into()),
+        }
+    }
+}
+
 /// The kind of a file judged from its first bytes.
 fn sniff(text: &str) -> Sniffed {
     let head: &str = &text[..text.len().min(8192)];

@@ -89,7 +89,8 @@ struct FilmsArgs {
     /// No progress display
     #[arg(long, short = 'q')]
     quiet: bool,
-    /// Board name for labels (default: from the job file, else the input's name)
+    /// Board name for labels (default: from the job file, else the input folder's or archive's
+    /// name, or the part the Gerber and drill files' names share)
     #[arg(long)]
     board_name: Option<String>,
     /// Date printed on labels, e.g. 2026-12-02 (default: today)
@@ -179,13 +180,6 @@ fn today() -> String {
     let m = if mp < 10 { mp + 3 } else { mp - 9 };
     let y = yoe + era * 400 + i64::from(m <= 2);
     format!("{y:04}-{m:02}-{d:02}")
-}
-
-fn default_board_name(inputs: &[PathBuf]) -> String {
-    inputs
-        .first()
-        .and_then(|p| p.file_stem().map(|s| s.to_string_lossy().to_string()))
-        .unwrap_or_else(|| "board".into())
 }
 
 fn run(cli: Cli) -> Result<ExitCode, String> {
@@ -279,7 +273,7 @@ fn films(a: FilmsArgs) -> Result<ExitCode, String> {
         .clone()
         .or_else(|| job.as_ref().and_then(|j| j.board.clone()))
         .or_else(|| board.job_name.clone())
-        .unwrap_or_else(|| default_board_name(&a.inputs));
+        .unwrap_or_else(|| board.default_name(&a.inputs));
     let opts = umbra::films::RunOptions {
         out: a.out.clone(),
         force: a.force,

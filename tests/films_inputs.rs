@@ -271,3 +271,31 @@ fn force_replaces_the_output_despite_a_leftover_folder_of_an_earlier_run() {
         vec![".out.old".to_string()]
     );
 }
+
+#[test]
+fn files_given_one_by_one_name_the_board_by_the_part_their_names_share() {
+    // The demo's Gerber and drill files without its job file (which would name the board),
+    // given one by one after a licence text: the board is named by what the fabrication
+    // files' names share, not by the first file given (common practice: EDA programs name
+    // every file of a board `BOARD.LAYER.EXT` or `BOARD-LAYER.EXT`).
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("LICENSE"),
+        "Shared for the workshop's course.\n",
+    )
+    .unwrap();
+    let mut args = vec!["LICENSE".to_string()];
+    for e in std::fs::read_dir(demo_dir()).unwrap() {
+        let p = e.unwrap().path();
+        let name = p.file_name().unwrap().to_string_lossy().to_string();
+        if name.ends_with(".gbr") || name.ends_with(".xln") {
+            std::fs::copy(&p, dir.path().join(&name)).unwrap();
+            args.push(name);
+        }
+    }
+    args.sort();
+    args.extend(["-o".into(), "out".into()]);
+    let args: Vec<&str> = args.iter().map(String::as_str).collect();
+    films_ok(dir.path(), &args);
+    assert_eq!(manifest(&dir.path().join("out"))["board"], "wren-node");
+}

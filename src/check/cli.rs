@@ -37,7 +37,8 @@ pub struct CheckArgs {
     /// Do not write the proof picture
     #[arg(long)]
     pub no_proof: bool,
-    /// Board name for the proof's title (default: from the job file, else the input's name)
+    /// Board name for the proof's title (default: from the job file, else the input folder's
+    /// or archive's name, or the part the Gerber and drill files' names share)
     #[arg(long)]
     pub board_name: Option<String>,
 }
@@ -54,12 +55,7 @@ pub fn run(a: CheckArgs) -> Result<ExitCode, String> {
         .clone()
         .or_else(|| job.as_ref().and_then(|j| j.board.clone()))
         .or_else(|| board.job_name.clone())
-        .unwrap_or_else(|| {
-            a.inputs
-                .first()
-                .and_then(|p| p.file_stem().map(|s| s.to_string_lossy().to_string()))
-                .unwrap_or_else(|| "board".into())
-        });
+        .unwrap_or_else(|| board.default_name(&a.inputs));
     let (films, frame, _warnings) =
         crate::films::make_films_checked(&board, &profile, job.as_ref(), &board_name, "")
             .map_err(|e| e.to_string())?;

@@ -268,10 +268,8 @@ pub(crate) struct RowPainter {
     events: Vec<u64>,
     /// The other buffer of the radix sort.
     spare: Vec<u64>,
-    /// The spans covering the current stretch of the row, by op index (drawing order):
-    /// `op index << 33 | dark << 32 | object`, so the sweep reads a span's object and
-    /// polarity from here rather than from the row's ops.
-    active: Vec<u64>,
+    /// The spans covering the current stretch of the row, by op index (drawing order).
+    active: Vec<u32>,
 }
 
 impl RowPainter {
@@ -316,20 +314,13 @@ impl RowPainter {
                 let i = (v as u32) >> 1;
                 // Few spans overlap at once: linear scans beat a binary search here.
                 if v & 1 == 1 {
-                    last_at = active.iter().rposition(|&a| (a >> 33) as u32 == i);
+                    last_at = active.iter().rposition(|&a| a == i);
                     if let Some(at) = last_at {
                         active.remove(at);
                     }
                 } else {
-                    let at = active
-                        .iter()
-                        .rposition(|&a| ((a >> 33) as u32) < i)
-                        .map_or(0, |p| p + 1);
-                    let (_, _, k, dark) = ops[i as usize];
-                    active.insert(
-                        at,
-                        u64::from(i) << 33 | u64::from(dark) << 32 | u64::from(k),
-                    );
+                    let at = active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1);
+                    active.insert(at, i);
                     last_at = Some(at);
                 }
                 e += 1;
@@ -347,10 +338,7 @@ impl RowPainter {
                 // came out.
                 let at = match last_at {
                     Some(at) if single => at,
-                    _ => active
-                        .iter()
-                        .rposition(|&a| ((a >> 33) as u32) < i)
-                        .map_or(0, |p| p + 1),
+                    _ => active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1),
                 };
                 let (lo, hi) = if v & 1 == 0 {
                     (at.saturating_sub(1), at + 2)
@@ -358,15 +346,14 @@ impl RowPainter {
                     (at.saturating_sub(1), at + 1)
                 };
                 for pair in active[lo..hi.min(active.len())].windows(2) {
-                    let (under, over) = (pair[0], pair[1]);
-                    let both_dark = under & over & 1 << 32 != 0;
-                    if both_dark && under as u32 != over as u32 {
-                        overlaps.note(over as u32, under as u32);
+                    let (under, over) = (ops[pair[0] as usize], ops[pair[1] as usize]);
+                    if under.3 && over.3 && under.2 != over.2 {
+                        overlaps.note(over.2, under.2);
                     }
                 }
             }
             let top = active[active.len() - 1];
-            let (k, dark) = (top as u32, top & 1 << 32 != 0);
+            let (_, _, k, dark) = ops[top as usize];
             let next = self.events.get(e).map_or(x, |v| (v >> 32) as u32);
             if !dark || next <= x {
                 continue;

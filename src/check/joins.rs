@@ -28,7 +28,7 @@ use super::area::Area;
 use super::measure::Labels;
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, Point, Polarity};
-use crate::raster::{render_with_design, Bitmap, DesignRuns, DeviceMap, RenderOptions};
+use crate::raster::{render_with_design, Bitmap, DeviceMap, RenderOptions};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -58,23 +58,6 @@ impl Uf {
             self.0[ra.max(rb) as usize] = ra.min(rb);
         }
     }
-}
-
-/// The design's runs on the checked area's rows, in crop columns.
-fn crop_rows(design: &DesignRuns, area: &Area, w: usize, h: usize) -> DesignRuns {
-    let (x0, x1) = (area.x0 as u32, (area.x0 + w) as u32);
-    let mut out = DesignRuns::default();
-    for y in 0..h {
-        let row = design.row(area.y0 + y);
-        let start = row.partition_point(|r| r.1 <= x0);
-        out.push_row(
-            row[start..]
-                .iter()
-                .take_while(|r| r.0 < x1)
-                .map(|&(a, b, o)| (a.max(x0) - x0, b.min(x1) - x0, o)),
-        );
-    }
-    out
 }
 
 /// Appends to `out` the parts of `[x0, x1)` not covered by runs of `row` whose object's piece
@@ -131,16 +114,16 @@ pub(super) fn closed_gaps(
 
     // 1. Design pieces: objects painted in order, joined where they share a pixel. The films
     // job records them while rendering the film; otherwise the layer is painted again.
-    let design = match input.design {
-        Some(spans) => spans.runs(),
+    // Only the checked area's runs are kept, in crop columns.
+    let rows = match input.design {
+        Some(spans) => spans.runs_in(area.x0, area.y0, w, h),
         None => render_with_design(&image.objects, input.map, &RenderOptions::default())
             .1
-            .runs(),
+            .runs_in(area.x0, area.y0, w, h),
     };
-    let rows = crop_rows(&design, area, w, h);
     let n = image.objects.len() as u32;
     let mut uf = Uf((0..n).collect());
-    for &(a, b) in &design.overlaps {
+    for &(a, b) in &rows.overlaps {
         uf.union(a, b);
     }
     let piece: Vec<u32> = (0..n).map(|i| uf.find(i)).collect();

@@ -381,7 +381,7 @@ const WINDOW_BITS: i64 = 64;
 /// row `j` is pixel (x − r + i, y − r + j). The ring search reads it instead of the bitmap:
 /// a whole side of a ring is then one mask. Rows are read as the rings reach them (most
 /// searches end long before the window's edge).
-struct Window {
+pub(crate) struct Window {
     x: i64,
     y: i64,
     r: i64,
@@ -391,6 +391,19 @@ struct Window {
 }
 
 impl Window {
+    /// A window to be set up by [`Probe::window_in`]: one per thread, reused for every probed
+    /// pixel (it is half a kilobyte: making, zeroing and moving a new one per pixel cost more
+    /// than the search on thin features).
+    pub fn scratch() -> Window {
+        Window {
+            x: 0,
+            y: 0,
+            r: 0,
+            filled: 0,
+            rows: [0; WINDOW_BITS as usize],
+        }
+    }
+
     /// Reads the rows ring `k` needs.
     fn grow(&mut self, probe: &Probe<'_>, k: i64) {
         let n = 2 * self.r + 1;
@@ -450,20 +463,23 @@ impl Probe<'_> {
     }
 
     /// The window of half-width `r` around (x, y), if it fits in a word.
+    #[cfg(test)]
     fn window(&self, x: i64, y: i64, r: i64) -> Option<Window> {
+        let mut win = Window::scratch();
+        self.window_in(&mut win, x, y, r)?;
+        Some(win)
+    }
+
+    /// Sets `win` up as the window of half-width `r` around (x, y), if it fits in a word.
+    /// Only the rows [`Window::grow`] reads are written; the others keep old values, unread.
+    fn window_in<'w>(&self, win: &'w mut Window, x: i64, y: i64, r: i64) -> Option<&'w mut Window> {
         let n = 2 * r + 1;
         if n > WINDOW_BITS {
             return None;
         }
-        let mut rows = [0; WINDOW_BITS as usize];
-        rows[r as usize] = self.row_bits(x - r, y, n);
-        Some(Window {
-            x,
-            y,
-            r,
-            filled: 0,
-            rows,
-        })
+        win.rows[r as usize] = self.row_bits(x - r, y, n);
+        (win.x, win.y, win.r, win.filled) = (x, y, r, 0);
+        Some(win)
     }
 
     /// The distance (mm) from the centre of pixel (`x`, `y`) to the nearest centre of a pixel
@@ -554,15 +570,22 @@ impl Probe<'_> {
         })
     }
 
-    /// The local width (mm) of the feature through pixel (`x`, `y`), or `None` when it is at
-    /// least `cap_mm` (the feature is not thin here). See the module docs.
+    /// [`Self::width_at_in`] with a window of its own.
+    #[cfg(test)]
     pub fn width_at(&self, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
+        self.width_at_in(&mut Window::scratch(), x, y, cap_mm)
+    }
+
+    /// The local width (mm) of the feature through pixel (`x`, `y`), or `None` when it is at
+    /// least `cap_mm` (the feature is not thin here). See the module docs. `scratch` is the
+    /// thread's reusable window ([`Window::scratch`]).
+    pub fn width_at_in(&self, scratch: &mut Window, x: i64, y: i64, cap_mm: f64) -> Option<f64> {
         let px = self.mm_x.max(self.mm_y);
         // Both searches stay within the first one's rings.
-        let mut window = self.window(x, y, self.rings(cap_mm + px));
-        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None, window.as_mut())?;
+        let mut window = self.window_in(scratch, x, y, self.rings(cap_mm + px));
+        let (d1, ux, uy) = self.nearest_outside(x, y, cap_mm + px, None, window.as_deref_mut())?;
         let cone = Some((-ux, -uy, OPPOSITE_COS));
-        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone, window.as_mut())?;
+        let (d2, _, _) = self.nearest_outside(x, y, cap_mm + px - d1, cone, window)?;
         // Each outside centre lies half a pixel (along the direction) beyond the edge.
         let pixel_along = (ux * self.mm_x).hypot(uy * self.mm_y);
         let width = d1 + d2 - pixel_along;

@@ -289,7 +289,7 @@ fn thin_parts(
     };
     comps
         .par_iter()
-        .filter_map(|c| {
+        .map_init(measure::Window::scratch, |window, c| {
             let (wanted, dangling) = match (&keep, &touches) {
                 (Keep::Separates(_), Some(t)) => (t.of(c) >= 2, false),
                 (Keep::Bridges, Some(t)) => {
@@ -307,7 +307,7 @@ fn thin_parts(
                 .pixels
                 .iter()
                 .step_by(stride)
-                .filter_map(|&(x, y)| probe.width_at(x as i64, y as i64, cap))
+                .filter_map(|&(x, y)| probe.width_at_in(window, x as i64, y as i64, cap))
                 .collect();
             if widths.is_empty() {
                 return None;
@@ -325,6 +325,7 @@ fn thin_parts(
                 width_mm: width,
             })
         })
+        .flatten()
         .collect()
 }
 

@@ -20,61 +20,49 @@ pub type Run = (u32, u32, u32);
 /// paints (Dark) or erases (Clear).
 pub(crate) type PaintOp = (u32, u32, u32, bool);
 
-/// The design's runs on a film's rows and the pairs of objects that share a pixel.
-#[derive(Debug, Clone, PartialEq, Eq)]
+/// The design's runs on a film's rows (or a window of them) and the pairs of objects that
+/// share a pixel.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct DesignRuns {
-    /// Every row's runs, row after row, in the film's own (possibly mirrored) columns,
-    /// sorted and disjoint within a row. Object indices are positions in the rendered
-    /// object list.
-    runs: Vec<Run>,
-    /// Where each row's runs start in `runs`; one more entry than rows.
-    starts: Vec<usize>,
+    /// The rows in bands of [`ROWS_PER_TASK`], as painted: one painting task's output is kept
+    /// as it is rather than copied into one list (the runs of a large board are tens of MB).
+    bands: Vec<RunBand>,
+    /// Rows held.
+    height: usize,
     /// Pairs (later object, earlier object) that share a pixel; a pair may repeat.
     pub overlaps: Vec<(u32, u32)>,
 }
 
-impl Default for DesignRuns {
-    fn default() -> Self {
-        DesignRuns {
-            runs: Vec::new(),
-            starts: vec![0],
-            overlaps: Vec::new(),
-        }
-    }
+/// Consecutive rows' runs: sorted and disjoint within a row. Object indices are positions in
+/// the rendered object list.
+#[derive(Debug, Clone, PartialEq, Eq)]
+struct RunBand {
+    runs: Vec<Run>,
+    /// Where each row's runs start in `runs`; one more entry than rows.
+    starts: Vec<u32>,
 }
 
 impl DesignRuns {
     /// Rows held.
     pub fn height(&self) -> usize {
-        self.starts.len() - 1
+        self.height
     }
 
     /// The runs of row `y` (empty beyond the last row).
     pub fn row(&self, y: usize) -> &[Run] {
-        match (self.starts.get(y), self.starts.get(y + 1)) {
-            (Some(&a), Some(&b)) => &self.runs[a..b],
+        let Some(band) = self.bands.get(y / ROWS_PER_TASK) else {
+            return &[];
+        };
+        let j = y % ROWS_PER_TASK;
+        match (band.starts.get(j), band.starts.get(j + 1)) {
+            (Some(&a), Some(&b)) => &band.runs[a as usize..b as usize],
             _ => &[],
         }
     }
 
-    /// Appends a row.
-    pub fn push_row(&mut self, runs: impl IntoIterator<Item = Run>) {
-        self.runs.extend(runs);
-        self.starts.push(self.runs.len());
-    }
-
-    /// Appends the rows of `other` below these, and its pairs.
-    pub fn append(&mut self, other: DesignRuns) {
-        let base = self.runs.len();
-        self.runs.extend(other.runs);
-        self.starts
-            .extend(other.starts[1..].iter().map(|&s| s + base));
-        self.overlaps.extend(other.overlaps);
-    }
-
     /// Runs in all.
     pub fn run_count(&self) -> usize {
-        self.runs.len()
+        self.bands.iter().map(|b| b.runs.len()).sum()
     }
 }
 
@@ -127,29 +115,90 @@ impl DesignSpans {
     /// Paints every row: the runs and the pairs of objects that share a pixel. Rows are
     /// painted in parallel groups; the result does not depend on the grouping.
     pub fn runs(&self) -> DesignRuns {
+        self.runs_in(0, 0, u32::MAX as usize, self.height())
+    }
+
+    /// Paints every row for the pairs of objects that share a pixel, and keeps the runs of
+    /// the `w × h` window whose top-left pixel is (`x0`, `y0`), in window coordinates (rows
+    /// beyond the film are empty). The same as cutting the window out of [`Self::runs`],
+    /// without painting all runs first and copying the window's out of them.
+    pub fn runs_in(&self, x0: usize, y0: usize, w: usize, h: usize) -> DesignRuns {
         use rayon::prelude::*;
-        let h = self.height();
-        let parts: Vec<DesignRuns> = (0..h.div_ceil(ROWS_PER_TASK))
+        let film_h = self.height();
+        let (cx0, cx1) = (
+            x0.min(u32::MAX as usize) as u32,
+            x0.saturating_add(w).min(u32::MAX as usize) as u32,
+        );
+        // Tasks: bands of the window's rows (their runs are kept), then the rows outside the
+        // window (only their pairs are).
+        let kept = h.min(film_h.saturating_sub(y0));
+        let mut tasks: Vec<(usize, usize, bool)> = (0..kept.div_ceil(ROWS_PER_TASK))
+            .map(|t| {
+                let a = y0 + t * ROWS_PER_TASK;
+                (a, (a + ROWS_PER_TASK).min(y0 + kept), true)
+            })
+            .collect();
+        for (lo, hi) in [
+            (0, y0.min(film_h)),
+            ((y0 + kept).max(y0.min(film_h)), film_h),
+        ] {
+            let mut a = lo;
+            while a < hi {
+                tasks.push((a, (a + ROWS_PER_TASK).min(hi), false));
+                a += ROWS_PER_TASK;
+            }
+        }
+        let parts: Vec<PaintedBand> = tasks
             .into_par_iter()
             .map_init(
                 || (RowPainter::default(), Overlaps::new(), Vec::new()),
-                |(painter, overlaps, runs), t| {
-                    let mut part = DesignRuns::default();
-                    for y in t * ROWS_PER_TASK..((t + 1) * ROWS_PER_TASK).min(h) {
-                        runs.clear();
-                        painter.paint_row(self.row(y), overlaps, runs);
-                        part.push_row(runs.iter().copied());
+                |(painter, overlaps, scratch), (a, b, keep)| {
+                    let mut band = RunBand {
+                        runs: Vec::new(),
+                        starts: Vec::with_capacity(b - a + 1),
+                    };
+                    band.starts.push(0);
+                    for y in a..b {
+                        if keep {
+                            let from = band.runs.len();
+                            painter.paint_row(self.row(y), overlaps, &mut band.runs, from);
+                            clip_row(&mut band.runs, from, cx0, cx1);
+                            band.starts.push(band.runs.len() as u32);
+                        } else {
+                            scratch.clear();
+                            painter.paint_row(self.row(y), overlaps, scratch, 0);
+                        }
                     }
-                    part.overlaps = std::mem::take(&mut overlaps.pairs);
-                    part
+                    let pairs = std::mem::take(&mut overlaps.pairs);
+                    (keep.then_some(band), pairs)
                 },
             )
             .collect();
-        let mut all = DesignRuns::default();
-        for part in parts {
-            all.append(part);
+        let mut all = DesignRuns {
+            height: h,
+            ..Default::default()
+        };
+        for (band, pairs) in parts {
+            all.bands.extend(band);
+            all.overlaps.extend(pairs);
         }
         all
+    }
+}
+
+/// One painting task's kept runs (none for rows outside the window) and its pairs.
+type PaintedBand = (Option<RunBand>, Vec<(u32, u32)>);
+
+/// Cuts the runs `runs[from..]` (one row) to columns `[x0, x1)` and shifts them to start at
+/// column `x0`.
+fn clip_row(runs: &mut Vec<Run>, from: usize, x0: u32, x1: u32) {
+    let row = &runs[from..];
+    let start = row.partition_point(|r| r.1 <= x0);
+    let end = start + row[start..].partition_point(|r| r.0 < x1);
+    runs.truncate(from + end);
+    runs.drain(from..from + start);
+    for r in &mut runs[from..] {
+        *r = (r.0.max(x0) - x0, r.1.min(x1) - x0, r.2);
     }
 }
 
@@ -231,7 +280,15 @@ impl RowPainter {
     /// pixel, and painting them in drawing order leaves the last one's object (nothing when
     /// it is Clear). Each Dark span paints over what the span before it left — so two spans
     /// next to each other in drawing order, both Dark, share those pixels.
-    pub fn paint_row(&mut self, ops: &[PaintOp], overlaps: &mut Overlaps, out: &mut Vec<Run>) {
+    ///
+    /// `out[..from]` holds earlier rows: the row's first run is not joined to them.
+    pub fn paint_row(
+        &mut self,
+        ops: &[PaintOp],
+        overlaps: &mut Overlaps,
+        out: &mut Vec<Run>,
+        from: usize,
+    ) {
         // Event: x << 32 | op index << 1 | 1 for an end. At one x, an op's start comes before
         // its end only if a == b, and empty spans are left out.
         self.events.clear();
@@ -249,29 +306,40 @@ impl RowPainter {
         while e < self.events.len() {
             let x = (self.events[e] >> 32) as u32;
             let batch = e;
+            // Where the last event's span went in (or left) `active`: when it is the only
+            // event at x, its neighbours are found there without another scan.
+            let mut last_at = None;
             while e < self.events.len() && (self.events[e] >> 32) as u32 == x {
                 let v = self.events[e];
                 let i = (v as u32) >> 1;
                 // Few spans overlap at once: linear scans beat a binary search here.
                 if v & 1 == 1 {
-                    if let Some(at) = active.iter().rposition(|&a| a == i) {
+                    last_at = active.iter().rposition(|&a| a == i);
+                    if let Some(at) = last_at {
                         active.remove(at);
                     }
                 } else {
                     let at = active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1);
                     active.insert(at, i);
+                    last_at = Some(at);
                 }
                 e += 1;
             }
             if active.is_empty() {
                 continue;
             }
+            let single = e - batch == 1;
             // Spans next to each other in drawing order that were not neighbours before
             // x: beside a span that started here, or across one that ended here. Pairs
             // that were neighbours before were noted then.
             for &v in &self.events[batch..e] {
                 let i = (v as u32) >> 1;
-                let at = active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1);
+                // `active` is sorted: the first span after `i` sits where `i` went in or
+                // came out.
+                let at = match last_at {
+                    Some(at) if single => at,
+                    _ => active.iter().rposition(|&a| a < i).map_or(0, |p| p + 1),
+                };
                 let (lo, hi) = if v & 1 == 0 {
                     (at.saturating_sub(1), at + 2)
                 } else {
@@ -290,8 +358,9 @@ impl RowPainter {
             if !dark || next <= x {
                 continue;
             }
+            let joinable = out.len() > from;
             match out.last_mut() {
-                Some(run) if run.1 == x && run.2 == k => run.1 = next,
+                Some(run) if joinable && run.1 == x && run.2 == k => run.1 = next,
                 _ => out.push((x, next, k)),
             }
         }
@@ -312,7 +381,7 @@ mod tests {
             (10, 20, 1, true), // adjacent to 0: not joined
             (18, 30, 2, true), // overlaps 1
         ];
-        painter.paint_row(&ops, &mut shared, &mut row);
+        painter.paint_row(&ops, &mut shared, &mut row, 0);
         assert_eq!(shared.pairs, vec![(2, 1)]);
         assert_eq!(row, vec![(0, 10, 0), (10, 18, 1), (18, 30, 2)]);
         // Erasing joins nothing, and a later object over erased pixels joins nothing either.
@@ -325,12 +394,12 @@ mod tests {
             (12, 16, 4, true), // only over erased pixels
             (3, 27, 3, true),  // over what is left of 0 and 2, and over 4
         ];
-        painter.paint_row(&ops, &mut shared, &mut row);
+        painter.paint_row(&ops, &mut shared, &mut row, 0);
         assert_eq!(shared.pairs, vec![(3, 0), (3, 4), (3, 2)]);
         assert_eq!(row, vec![(0, 3, 0), (3, 27, 3), (27, 30, 2)]);
         // The buffer is empty again: a row with nothing painted has no runs.
         row.clear();
-        painter.paint_row(&[(30, 31, 4, false)], &mut shared, &mut row);
+        painter.paint_row(&[(30, 31, 4, false)], &mut shared, &mut row, 0);
         assert!(row.is_empty());
     }
 
@@ -402,12 +471,57 @@ mod tests {
             let (want_runs, want_pairs) = painted_pixel_by_pixel(&ops, 90);
             let mut shared = Overlaps::new();
             let mut runs = Vec::new();
-            painter.paint_row(&ops, &mut shared, &mut runs);
+            painter.paint_row(&ops, &mut shared, &mut runs, 0);
             let mut pairs = shared.pairs;
             pairs.sort_unstable();
             pairs.dedup();
             assert_eq!(runs, want_runs, "{ops:?}");
             assert_eq!(pairs, want_pairs, "{ops:?}");
+        }
+    }
+
+    #[test]
+    fn window_runs_are_the_cut_out_runs() {
+        // Cutting a window out of all runs by hand (the definition) must give the window's
+        // runs, for windows inside, across and beyond the film's edges, and the same pairs.
+        let mut spans = DesignSpans::default();
+        let mut seed = 7u64;
+        let mut next = |n: u64| {
+            seed = seed
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (seed >> 33) % n
+        };
+        for _ in 0..300 {
+            let ops: Vec<PaintOp> = (0..next(8))
+                .map(|k| {
+                    let a = next(80) as u32;
+                    (a, a + next(30) as u32, k as u32, next(5) != 0)
+                })
+                .collect();
+            spans.push_row(&ops);
+        }
+        let all = spans.runs();
+        let mut want_pairs = all.overlaps.clone();
+        want_pairs.sort_unstable();
+        want_pairs.dedup();
+        for (x0, y0, w, h) in [(0, 0, 120, 300), (10, 70, 40, 100), (50, 250, 100, 200)] {
+            let cut = spans.runs_in(x0, y0, w, h);
+            assert_eq!(cut.height(), h);
+            for y in 0..h {
+                let (a, b) = (x0 as u32, (x0 + w) as u32);
+                let want: Vec<Run> = all
+                    .row(y0 + y)
+                    .iter()
+                    .filter(|r| r.1 > a && r.0 < b)
+                    .map(|&(c, d, o)| (c.max(a) - a, d.min(b) - a, o))
+                    .collect();
+                assert_eq!(cut.row(y), &want[..], "window {x0} {y0}, row {y}");
+            }
+            let mut pairs = cut.overlaps.clone();
+            pairs.sort_unstable();
+            pairs.dedup();
+            assert_eq!(pairs, want_pairs);
         }
     }
 

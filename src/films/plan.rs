@@ -185,9 +185,9 @@ pub fn make_films(
     make_films_for(board, profile, job, board_name, date, false)
 }
 
-/// [`make_films`] for a run that checks the films: copper films also record which layer
-/// object each pixel shows (`RenderedFilm::design`), which the check's closed-gap search
-/// would otherwise paint again.
+/// [`make_films`] for a run that checks the films: copper films also keep the layer's spans
+/// as rendered (`RenderedFilm::design`), which the check's closed-gap search would otherwise
+/// render again.
 pub fn make_films_checked(
     board: &Board,
     profile: &Profile,

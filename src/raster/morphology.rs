@@ -269,6 +269,16 @@ fn widen_row(row: &mut [u64], from: usize, to: usize, scratch: &mut [u64]) {
     }
 }
 
+/// The rows `y ± j` for `j` in `j0..=j1` that lie in `0..h` (each once).
+fn rows_at_offsets(y: usize, j0: usize, j1: usize, h: usize) -> impl Iterator<Item = usize> {
+    (j0..=j1).flat_map(move |j| {
+        [y.checked_sub(j), (j > 0).then_some(y + j)]
+            .into_iter()
+            .flatten()
+            .filter(move |&yy| yy < h)
+    })
+}
+
 /// [`dilate_band`] with the horizontal dilations shared between output rows: every input
 /// row the band reads is dilated once per group (smallest half-width first, each widened
 /// from the last), then each output row ORs the rows its disc covers. Same result.
@@ -304,17 +314,10 @@ fn dilate_band_shared(
     for (r, out_row) in chunk.chunks_mut(wpr).enumerate() {
         let y = first_row + r;
         for (&(j0, j1, _), rows) in groups.iter().zip(&wide) {
-            for j in j0..=j1 {
-                for yy in [y.checked_sub(j), (j > 0).then_some(y + j)]
-                    .into_iter()
-                    .flatten()
-                {
-                    if yy < h {
-                        let src = &rows[(yy - lo) * wpr..(yy - lo + 1) * wpr];
-                        for (o, s) in out_row.iter_mut().zip(src) {
-                            *o |= *s;
-                        }
-                    }
+            for yy in rows_at_offsets(y, j0, j1, h) {
+                let src = &rows[(yy - lo) * wpr..(yy - lo + 1) * wpr];
+                for (o, s) in out_row.iter_mut().zip(src) {
+                    *o |= *s;
                 }
             }
         }
@@ -340,18 +343,11 @@ fn dilate_band(
         for &(j0, j1, k) in groups {
             acc.fill(0);
             let mut any = false;
-            for j in j0..=j1 {
-                for yy in [y.checked_sub(j), (j > 0).then_some(y + j)]
-                    .into_iter()
-                    .flatten()
-                {
-                    if yy < h {
-                        for (a, s) in acc.iter_mut().zip(input.row(yy)) {
-                            *a |= *s;
-                        }
-                        any = true;
-                    }
+            for yy in rows_at_offsets(y, j0, j1, h) {
+                for (a, s) in acc.iter_mut().zip(input.row(yy)) {
+                    *a |= *s;
                 }
+                any = true;
             }
             if !any {
                 continue;

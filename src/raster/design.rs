@@ -17,8 +17,34 @@
 pub type Run = (u32, u32, u32);
 
 /// One object's span on one row, in drawing order: `[x0, x1)`, the object, and whether it
-/// paints (Dark) or erases (Clear).
-pub(crate) type PaintOp = (u32, u32, u32, bool);
+/// paints (Dark) or erases (Clear). Twelve bytes: the polarity rides in the object index's
+/// lowest bit (a film's spans are kept until the check has run: millions of them).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct PaintOp {
+    pub x0: u32,
+    pub x1: u32,
+    tagged: u32,
+}
+
+impl PaintOp {
+    /// Object indices below 2³¹ (an image of that many objects could not be held anyway).
+    pub fn new(x0: u32, x1: u32, object: u32, dark: bool) -> PaintOp {
+        debug_assert!(object < 1 << 31);
+        PaintOp {
+            x0,
+            x1,
+            tagged: object << 1 | u32::from(dark),
+        }
+    }
+
+    pub fn object(self) -> u32 {
+        self.tagged >> 1
+    }
+
+    pub fn dark(self) -> bool {
+        self.tagged & 1 == 1
+    }
+}
 
 /// The design's runs on a film's rows (or a window of them) and the pairs of objects that
 /// share a pixel.
@@ -292,7 +318,7 @@ impl RowPainter {
         // Event: x << 32 | op index << 1 | 1 for an end. At one x, an op's start comes before
         // its end only if a == b, and empty spans are left out.
         self.events.clear();
-        for (i, &(a, b, _, _)) in ops.iter().enumerate() {
+        for (i, &PaintOp { x0: a, x1: b, .. }) in ops.iter().enumerate() {
             if a < b {
                 let i = (i as u64) << 1;
                 self.events.push(u64::from(a) << 32 | i);
@@ -347,13 +373,13 @@ impl RowPainter {
                 };
                 for pair in active[lo..hi.min(active.len())].windows(2) {
                     let (under, over) = (ops[pair[0] as usize], ops[pair[1] as usize]);
-                    if under.3 && over.3 && under.2 != over.2 {
-                        overlaps.note(over.2, under.2);
+                    if under.dark() && over.dark() && under.object() != over.object() {
+                        overlaps.note(over.object(), under.object());
                     }
                 }
             }
             let top = active[active.len() - 1];
-            let (_, _, k, dark) = ops[top as usize];
+            let (k, dark) = (ops[top as usize].object(), ops[top as usize].dark());
             let next = self.events.get(e).map_or(x, |v| (v >> 32) as u32);
             if !dark || next <= x {
                 continue;
@@ -371,6 +397,15 @@ impl RowPainter {
 mod tests {
     use super::*;
 
+    /// A span as the tests write it: `[x0, x1)`, object, dark.
+    type Op = (u32, u32, u32, bool);
+
+    fn packed(ops: &[Op]) -> Vec<PaintOp> {
+        ops.iter()
+            .map(|&(a, b, k, dark)| PaintOp::new(a, b, k, dark))
+            .collect()
+    }
+
     #[test]
     fn painting_joins_overlapping_objects_only() {
         let mut shared = Overlaps::new();
@@ -381,7 +416,7 @@ mod tests {
             (10, 20, 1, true), // adjacent to 0: not joined
             (18, 30, 2, true), // overlaps 1
         ];
-        painter.paint_row(&ops, &mut shared, &mut row, 0);
+        painter.paint_row(&packed(&ops), &mut shared, &mut row, 0);
         assert_eq!(shared.pairs, vec![(2, 1)]);
         assert_eq!(row, vec![(0, 10, 0), (10, 18, 1), (18, 30, 2)]);
         // Erasing joins nothing, and a later object over erased pixels joins nothing either.
@@ -394,18 +429,18 @@ mod tests {
             (12, 16, 4, true), // only over erased pixels
             (3, 27, 3, true),  // over what is left of 0 and 2, and over 4
         ];
-        painter.paint_row(&ops, &mut shared, &mut row, 0);
+        painter.paint_row(&packed(&ops), &mut shared, &mut row, 0);
         assert_eq!(shared.pairs, vec![(3, 0), (3, 4), (3, 2)]);
         assert_eq!(row, vec![(0, 3, 0), (3, 27, 3), (27, 30, 2)]);
         // The buffer is empty again: a row with nothing painted has no runs.
         row.clear();
-        painter.paint_row(&[(30, 31, 4, false)], &mut shared, &mut row, 0);
+        painter.paint_row(&packed(&[(30, 31, 4, false)]), &mut shared, &mut row, 0);
         assert!(row.is_empty());
     }
 
     /// The painting model spelled out pixel by pixel: an owner per pixel, spans painted in
     /// order; a Dark span notes every other owner it paints over.
-    fn painted_pixel_by_pixel(ops: &[PaintOp], width: usize) -> (Vec<Run>, Vec<(u32, u32)>) {
+    fn painted_pixel_by_pixel(ops: &[Op], width: usize) -> (Vec<Run>, Vec<(u32, u32)>) {
         let mut owner: Vec<Option<u32>> = vec![None; width];
         let mut pairs = Vec::new();
         for &(a, b, k, dark) in ops {
@@ -471,7 +506,7 @@ mod tests {
             let (want_runs, want_pairs) = painted_pixel_by_pixel(&ops, 90);
             let mut shared = Overlaps::new();
             let mut runs = Vec::new();
-            painter.paint_row(&ops, &mut shared, &mut runs, 0);
+            painter.paint_row(&packed(&ops), &mut shared, &mut runs, 0);
             let mut pairs = shared.pairs;
             pairs.sort_unstable();
             pairs.dedup();
@@ -493,13 +528,13 @@ mod tests {
             (seed >> 33) % n
         };
         for _ in 0..300 {
-            let ops: Vec<PaintOp> = (0..next(8))
+            let ops: Vec<Op> = (0..next(8))
                 .map(|k| {
                     let a = next(80) as u32;
                     (a, a + next(30) as u32, k as u32, next(5) != 0)
                 })
                 .collect();
-            spans.push_row(&ops);
+            spans.push_row(&packed(&ops));
         }
         let all = spans.runs();
         let mut want_pairs = all.overlaps.clone();

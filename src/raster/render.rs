@@ -227,7 +227,7 @@ fn paint_band(
                 };
                 fill_row_span(words, a, b, p.dark);
                 if record {
-                    ops[row - first_row].push((a as u32, b as u32, p.index, p.dark));
+                    ops[row - first_row].push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
                 }
             }
         }

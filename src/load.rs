@@ -207,7 +207,7 @@ impl Board {
     /// share (`wren-node.top.gbr`, `wren-node.bottom.gbr` → `wren-node`), counting only the
     /// files read as Gerber or drill files (a licence or a note beside them says nothing of
     /// the board), else the first file's name.
-    pub fn default_name(&self, inputs: &[std::path::PathBuf]) -> String {
+    pub fn default_name(&self, inputs: &[PathBuf]) -> String {
         let stem = |p: &Path| p.file_stem().map(|s| s.to_string_lossy().to_string());
         if let [one] = inputs {
             return stem(one).unwrap_or_else(|| "board".into());

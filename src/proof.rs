@@ -247,12 +247,14 @@ fn mix(a: Rgb, b: Rgb, t: f64) -> Rgb {
     [f(a[0], b[0]), f(a[1], b[1]), f(a[2], b[2])]
 }
 
-/// Where the sub-samples of picture pixels fall on one film: for each picture column (row),
-/// `n` film columns (rows), `usize::MAX` when off the film or outside the board. The maps are
-/// axis-aligned, so film x depends on board x only and film y on board y only.
+/// Where the sub-samples of picture pixels fall on one film: for each picture column, `n`
+/// film columns as (word index, bit shift, 1), or (0, 0, 0) when off the film or outside the
+/// board (the read stays in the row and counts nothing); for each picture row, `n` film rows,
+/// `usize::MAX` when off. The maps are axis-aligned, so film x depends on board x only and
+/// film y on board y only.
 struct Samples {
     n: usize,
-    cols: Vec<usize>,
+    cols: Vec<(u32, u32, u64)>,
     rows: Vec<usize>,
 }
 
@@ -267,9 +269,9 @@ impl Samples {
                 let ok = p.x >= keep.min_x && p.x <= keep.max_x && fx >= 0.0;
                 let fx = fx as usize;
                 cols.push(if ok && fx < film.film.width() {
-                    fx
+                    ((fx / 64) as u32, (63 - fx % 64) as u32, 1)
                 } else {
-                    usize::MAX
+                    (0, 0, 0)
                 });
             }
         }
@@ -290,28 +292,9 @@ impl Samples {
         Samples { n, cols, rows }
     }
 
-    /// The film's word index and bit shift of every column sample, with a mask that is 0 for
-    /// samples off the film (their word index is 0, so the read stays in the row).
-    fn column_bits(&self) -> Vec<(u32, u32, u64)> {
-        self.cols
-            .iter()
-            .map(|&fx| match fx {
-                usize::MAX => (0, 0, 0),
-                fx => ((fx / 64) as u32, (63 - fx % 64) as u32, 1),
-            })
-            .collect()
-    }
-
     /// Adds to `hits[x]` the samples of picture row `y` that fall on material, for every
-    /// picture column `x` in `x0..x1` (`bits` from [`Self::column_bits`]).
-    fn add_row(
-        &self,
-        film: &CopperFilm<'_>,
-        bits: &[(u32, u32, u64)],
-        y: usize,
-        (x0, x1): (usize, usize),
-        hits: &mut [u8],
-    ) {
+    /// picture column `x` in `x0..x1`.
+    fn add_row(&self, film: &CopperFilm<'_>, y: usize, (x0, x1): (usize, usize), hits: &mut [u8]) {
         let n = self.n;
         for &fy in &self.rows[y * n..(y + 1) * n] {
             if fy == usize::MAX {
@@ -321,7 +304,7 @@ impl Samples {
             for (x, h) in hits.iter_mut().enumerate().take(x1).skip(x0) {
                 let mut set = 0;
                 let mut valid = 0;
-                for &(wi, sh, ok) in &bits[x * n..(x + 1) * n] {
+                for &(wi, sh, ok) in &self.cols[x * n..(x + 1) * n] {
                     set += (row[wi as usize] >> sh) & ok;
                     valid += ok;
                 }
@@ -405,8 +388,6 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
             (c.ceil().max(0.0) as usize).min(w),
         )
     };
-    let top_bits = top.as_ref().map(|(_, s)| s.column_bits());
-    let bottom_bits = bottom.as_ref().map(|(_, s)| s.column_bits());
     canvas
         .pixels
         .par_chunks_mut(w)
@@ -418,11 +399,11 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
                 // Samples on material per picture pixel, top and bottom.
                 ht.fill(0);
                 hb.fill(0);
-                if let (Some((f, s)), Some(bits)) = (&top, &top_bits) {
-                    s.add_row(f, bits, y, (kx0, kx1), ht);
+                if let Some((f, s)) = &top {
+                    s.add_row(f, y, (kx0, kx1), ht);
                 }
-                if let (Some((f, s)), Some(bits)) = (&bottom, &bottom_bits) {
-                    s.add_row(f, bits, y, (kx0, kx1), hb);
+                if let Some((f, s)) = &bottom {
+                    s.add_row(f, y, (kx0, kx1), hb);
                 }
                 let fraction = |hits: u8, s: Option<&Samples>| {
                     s.map_or(0.0, |s| hits as f64 / (s.n * s.n) as f64)

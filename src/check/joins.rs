@@ -113,14 +113,17 @@ pub(super) fn closed_gaps(
     let (w, h) = (material.width(), material.height());
 
     // 1. Design pieces: objects painted in order, joined where they share a pixel. The films
-    // job records them while rendering the film; otherwise the layer is painted again.
-    // Only the checked area's runs are kept, in crop columns.
-    let rows = match input.design {
-        Some(spans) => spans.runs_in(area.x0, area.y0, w, h),
-        None => render_with_design(&image.objects, input.map, &RenderOptions::default())
-            .1
-            .runs_in(area.x0, area.y0, w, h),
+    // job keeps the layer's spans from rendering the film; otherwise they are rendered
+    // again. Only the checked area's runs are kept, in crop columns.
+    let rendered;
+    let spans = match input.design {
+        Some(spans) => spans,
+        None => {
+            rendered = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
+            &rendered
+        }
     };
+    let rows = spans.runs_in(area.x0, area.y0, w, h);
     let n = image.objects.len() as u32;
     let mut uf = Uf((0..n).collect());
     for &(a, b) in &rows.overlaps {

@@ -269,9 +269,11 @@ fn thin_parts(
     };
     let opened = morphology::opening(space, r_um, pitch);
     let residue = and_not(space, &opened);
-    let opened_labels = match keep {
-        Keep::Bridges => Some(Labels::of(&opened)),
-        Keep::Separates(_) => None,
+    // Which pieces each residue part touches: of the opened copper (bridges), or of the
+    // other material (gaps and webs).
+    let touches = match keep {
+        Keep::Bridges => Labels::of(&opened).touches(&residue),
+        Keep::Separates(l) => l.touches(&residue),
     };
     drop(opened);
     let probe = Probe {
@@ -282,21 +284,13 @@ fn thin_parts(
     };
     let cap = MEASURE_FACTOR * min_mm;
     let comps = components(&residue, MAX_RESIDUE_PIXELS);
-    let touches = match (&keep, &opened_labels) {
-        (Keep::Separates(l), _) => Some(l.touches(&residue)),
-        (Keep::Bridges, Some(l)) => Some(l.touches(&residue)),
-        (Keep::Bridges, None) => None,
-    };
     comps
         .par_iter()
         .map_init(measure::Window::scratch, |window, c| {
-            let (wanted, dangling) = match (&keep, &touches) {
-                (Keep::Separates(_), Some(t)) => (t.of(c) >= 2, false),
-                (Keep::Bridges, Some(t)) => {
-                    let one = t.of(c) == 1;
-                    (!one, one)
-                }
-                _ => (true, false),
+            let pieces = touches.of(c);
+            let (wanted, dangling) = match keep {
+                Keep::Separates(_) => (pieces >= 2, false),
+                Keep::Bridges => (pieces != 1, pieces == 1),
             };
             if !wanted && !dangling {
                 return None;

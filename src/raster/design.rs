@@ -85,11 +85,6 @@ impl DesignRuns {
             _ => &[],
         }
     }
-
-    /// Runs in all.
-    pub fn run_count(&self) -> usize {
-        self.bands.iter().map(|b| b.runs.len()).sum()
-    }
 }
 
 /// The layer's spans as the renderer painted them: per row, in drawing order. Recording them
@@ -400,6 +395,18 @@ mod tests {
     /// A span as the tests write it: `[x0, x1)`, object, dark.
     type Op = (u32, u32, u32, bool);
 
+    /// Numbers below `n` from a linear congruential generator (Knuth's MMIX constants), so
+    /// that the randomized tests are the same on every run.
+    fn numbers(seed: u64) -> impl FnMut(u64) -> u64 {
+        let mut seed = seed;
+        move |n| {
+            seed = seed
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (seed >> 33) % n
+        }
+    }
+
     fn packed(ops: &[Op]) -> Vec<PaintOp> {
         ops.iter()
             .map(|&(a, b, k, dark)| PaintOp::new(a, b, k, dark))
@@ -473,15 +480,8 @@ mod tests {
 
     #[test]
     fn sweep_agrees_with_painting_pixel_by_pixel() {
-        // Random rows of spans (a small linear congruential generator, so the test is the
-        // same on every run), some objects with two spans, about one in five Clear.
-        let mut seed = 12_345u64;
-        let mut next = |n: u64| {
-            seed = seed
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (seed >> 33) % n
-        };
+        // Random rows of spans, some objects with two spans, about one in five Clear.
+        let mut next = numbers(12_345);
         let mut painter = RowPainter::default();
         for _ in 0..500 {
             let mut ops = Vec::new();
@@ -520,13 +520,7 @@ mod tests {
         // Cutting a window out of all runs by hand (the definition) must give the window's
         // runs, for windows inside, across and beyond the film's edges, and the same pairs.
         let mut spans = DesignSpans::default();
-        let mut seed = 7u64;
-        let mut next = |n: u64| {
-            seed = seed
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-            (seed >> 33) % n
-        };
+        let mut next = numbers(7);
         for _ in 0..300 {
             let ops: Vec<Op> = (0..next(8))
                 .map(|k| {
@@ -564,13 +558,8 @@ mod tests {
     fn radix_sort_orders_events_by_x() {
         // 1,000 events with x up to 60,000 (two 8-bit digits): sorted by x they must agree
         // with a comparison sort of their x values, and every event must still be there.
-        let mut seed = 99u64;
-        let mut events: Vec<u64> = (0..1000u64)
-            .map(|i| {
-                seed = seed.wrapping_mul(6_364_136_223_846_793_005).wrapping_add(1);
-                ((seed >> 33) % 60_000) << 32 | i << 1
-            })
-            .collect();
+        let mut next = numbers(99);
+        let mut events: Vec<u64> = (0..1000u64).map(|i| next(60_000) << 32 | i << 1).collect();
         let mut want = events.clone();
         want.sort_unstable();
         sort_by_x(&mut events, &mut Vec::new());

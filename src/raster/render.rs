@@ -88,11 +88,14 @@ fn render_bands(
 ) -> (Bitmap, Option<DesignSpans>) {
     let mut bitmap = Bitmap::new(map.width, map.height);
     if map.width == 0 || map.height == 0 {
-        let mut design = DesignSpans::default();
-        for _ in 0..map.height {
-            design.push_row(&[]);
-        }
-        return (bitmap, record.then_some(design));
+        let design = record.then(|| {
+            let mut design = DesignSpans::default();
+            for _ in 0..map.height {
+                design.push_row(&[]);
+            }
+            design
+        });
+        return (bitmap, design);
     }
     // At least one row, at most the film (also keeps `words_per_row × band_rows` small).
     let band_rows = opts.band_rows.clamp(1, map.height);

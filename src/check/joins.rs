@@ -5,16 +5,19 @@
 //! so the closing of the film's copper sees nothing. Instead the design's connectivity is
 //! compared with the film's:
 //!
-//! 1. **Design pieces.** The layer's objects painted in order at the film's pixel grid into
-//!    runs that remember which object painted each pixel last (Clear objects erase;
-//!    `crate::raster::DesignRuns`, from the spans recorded while the film was rendered).
-//!    Two objects belong to one piece when they share a pixel centre: a point inside both
+//! 1. **Design pieces.** Two objects belong to one piece when they share a pixel centre of
+//!    the film's grid (a Clear object drawn between them may erase it): a point inside both
 //!    shapes, so they overlap in the design. Objects that only come within a pixel of each
 //!    other stay separate, whichever way the grid falls — that is what finds sub-pixel gaps.
-//! 2. **Film pieces.** The film's copper components (union-find over pixel runs).
-//! 3. **Joins.** Design pieces whose pixels fall into one film component are joined on the
-//!    film. Where two of them come closest (the nearest pair of their pixels within the
-//!    growth's reach) the film must be copper all the way across; that is the place reported.
+//!    The drawn geometry settles most pairs (`pieces.rs`); the pairs it leaves open are
+//!    painted at the film's pixels on the rows where they meet, from the spans recorded
+//!    while the film was rendered (`crate::raster::DesignSpans`: objects painted in order
+//!    into runs that remember which object painted each pixel last).
+//! 2. **Contacts.** Two pieces can only be joined by the film where they come within the
+//!    growth's reach, which is where a pair left open lies: there, the nearest pair of their
+//!    pixels.
+//! 3. **Joins.** Where the film is copper all the way across between those two pixels, the
+//!    pieces are one on the film; that is the place reported.
 //! 4. **Design gap.** The exact distance between the drawn shapes of the two pieces near that
 //!    place, from their outlines (arcs as chords within 0.1 µm). Pieces that touch or overlap
 //!    in the design (distance 0, pixels adjacent) are joined on purpose and not reported;
@@ -25,10 +28,10 @@
 //! object): a clearance that closes is the "clearance lost" check's business.
 
 use super::area::Area;
-use super::measure::Labels;
+use super::pieces::sure_pieces;
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, Point, Polarity};
-use crate::raster::{render_with_design, Bitmap, DeviceMap, RenderOptions};
+use crate::raster::{render_with_design, Bitmap, DesignSpans, DeviceMap, RenderOptions};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -41,66 +44,14 @@ const TOUCHING_MM: f64 = 0.001;
 /// Arc tolerance of the outlines used for the exact design gap, mm.
 const OUTLINE_TOLERANCE_MM: f64 = 1e-4;
 
-struct Uf(Vec<u32>);
-
-impl Uf {
-    fn find(&mut self, mut i: u32) -> u32 {
-        while self.0[i as usize] != i {
-            let g = self.0[self.0[i as usize] as usize];
-            self.0[i as usize] = g;
-            i = g;
-        }
-        i
-    }
-    fn union(&mut self, a: u32, b: u32) {
-        let (ra, rb) = (self.find(a), self.find(b));
-        if ra != rb {
-            self.0[ra.max(rb) as usize] = ra.min(rb);
-        }
-    }
-}
-
-/// Appends to `out` the parts of `[x0, x1)` not covered by runs of `row` whose object's piece
-/// is `want`.
-fn uncovered(
-    row: &[(u32, u32, u32)],
-    piece: &[u32],
-    want: u32,
-    x0: u32,
-    x1: u32,
-    out: &mut Vec<u32>,
-) {
-    let mut x = x0;
-    let start = row.partition_point(|r| r.1 <= x0);
-    for &(a, b, o) in &row[start..] {
-        if b <= x || piece[o as usize] != want {
-            continue;
-        }
-        if a >= x1 {
-            break;
-        }
-        if a > x {
-            out.extend(x..a.min(x1));
-        }
-        x = x.max(b);
-        if x >= x1 {
-            break;
-        }
-    }
-    if x < x1 {
-        out.extend(x..x1);
-    }
-}
-
 /// The nearest pixels of two joined pieces: squared distance (mm²) and both pixels.
 type Contact = (f64, (u32, u32), (u32, u32));
 
-/// Gaps between separately drawn copper that the film closes entirely. `labels` are the
-/// film copper's components (`material`, crop pixels).
+/// Gaps between separately drawn copper that the film closes entirely (`material`: the film's
+/// copper, crop pixels).
 pub(super) fn closed_gaps(
     input: &FilmInput<'_>,
     material: &Bitmap,
-    labels: &Labels,
     area: &Area,
     min_gap_mm: f64,
 ) -> Vec<Finding> {
@@ -111,75 +62,6 @@ pub(super) fn closed_gaps(
         return Vec::new();
     }
     let (w, h) = (material.width(), material.height());
-
-    // 1. Design pieces: objects painted in order, joined where they share a pixel. The films
-    // job keeps the layer's spans from rendering the film; otherwise they are rendered
-    // again. Only the checked area's runs are kept, in crop columns.
-    let rendered;
-    let spans = match input.design {
-        Some(spans) => spans,
-        None => {
-            rendered = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
-            &rendered
-        }
-    };
-    let rows = spans.runs_in(area.x0, area.y0, w, h);
-    let n = image.objects.len() as u32;
-    let mut uf = Uf((0..n).collect());
-    for &(a, b) in &rows.overlaps {
-        uf.union(a, b);
-    }
-    let piece: Vec<u32> = (0..n).map(|i| uf.find(i)).collect();
-
-    // 2.–3. Which film components each piece's pixels fall into (indexed by piece root).
-    let mut film_of: Vec<Vec<u32>> = vec![Vec::new(); n as usize];
-    for y in 0..h {
-        let row = rows.row(y);
-        for &(a, b, o) in row {
-            if let Some(l) = labels.first_in(y, a as usize, b as usize) {
-                let v = &mut film_of[piece[o as usize] as usize];
-                if !v.contains(&l) {
-                    v.push(l);
-                }
-            }
-        }
-    }
-    // Only pieces sharing a film component with another piece can be joined.
-    let mut pieces_in: HashMap<u32, Vec<u32>> = HashMap::new();
-    for (p, ls) in film_of.iter().enumerate() {
-        for &l in ls {
-            pieces_in.entry(l).or_default().push(p as u32);
-        }
-    }
-    pieces_in.retain(|_, v| v.len() >= 2);
-    if pieces_in.is_empty() {
-        return Vec::new();
-    }
-    // The nearest pixels of two pieces are found from either side: search from the piece
-    // with fewer runs (a pour joined to one track is never walked along). `rank` orders
-    // the pieces by size; a piece searches for joined pieces of higher rank.
-    let mut run_count = vec![0u32; n as usize];
-    for y in 0..h {
-        let row = rows.row(y);
-        for &(_, _, o) in row {
-            run_count[piece[o as usize] as usize] += 1;
-        }
-    }
-    let rank = |p: u32| (run_count[p as usize], p);
-    let mut joined = vec![false; n as usize];
-    let mut searches = vec![false; n as usize];
-    for ps in pieces_in.values() {
-        let top = ps.iter().copied().max_by_key(|&p| rank(p));
-        for &p in ps {
-            joined[p as usize] = true;
-            searches[p as usize] |= Some(p) != top;
-        }
-    }
-    let shares = |a: u32, b: u32| {
-        let y = &film_of[b as usize];
-        film_of[a as usize].iter().any(|l| y.contains(l))
-    };
-
     // The growth's reach: a gap up to twice the growth plus a pixel can close.
     let growth_mm = if input.recipe.black_is_material {
         input.recipe.edge_offset_um
@@ -188,96 +70,78 @@ pub(super) fn closed_gaps(
     } / 1000.0;
     let px = area.pixel_mm();
     let reach_mm = 2.0 * growth_mm.max(0.0) + 2.0 * px;
+
+    // 0. What the drawn geometry settles: pieces that surely share pixels, and the close
+    // pairs of pieces left open (`pieces.rs`). No open pair: nothing can be joined.
+    let mut sure = sure_pieces(&image.objects, reach_mm, input.map);
+    if sure.open.is_empty() {
+        return Vec::new();
+    }
+    // The film's spans: the films job keeps the layer's spans from rendering the film;
+    // otherwise they are rendered again.
+    let rendered;
+    let spans = match input.design {
+        Some(spans) => spans,
+        None => {
+            rendered = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
+            &rendered
+        }
+    };
+    // Open pairs that share a pixel after all: paint the rows where they meet. Every pair
+    // painted there shares a pixel, so the sets stay within the design's pieces.
+    let rows: Vec<(usize, usize)> = sure
+        .open
+        .iter()
+        .map(|(_, _, ga, gb)| {
+            let (y0, y1) = (ga.min_y.max(gb.min_y), ga.max_y.min(gb.max_y));
+            let (_, p0) = input.map.to_px(Point::new(0.0, y0));
+            let (_, p1) = input.map.to_px(Point::new(0.0, y1));
+            let lo = p0.min(p1).floor().max(0.0) as usize;
+            let hi = p0.max(p1).ceil().max(0.0) as usize + 1;
+            (lo.saturating_sub(1), hi)
+        })
+        .collect();
+    for (a, b) in spans.overlaps_on_rows(&rows) {
+        sure.union(a, b);
+    }
+    sure.settle();
+    if sure.open.is_empty() {
+        return Vec::new();
+    }
+    // The sets are now the design's pieces: every pair of objects that shares a pixel is in
+    // one set (surely, or painted above), and two pieces come within reach of each other
+    // only where an open pair does.
+    let n = image.objects.len() as u32;
+    let piece: Vec<u32> = (0..n).map(|i| sure.find(i)).collect();
+
+    // 2.–3. The nearest pixels of every two pieces left open, within reach: the runs of the
+    // rows around each open pair, painted with their objects.
     let r = (reach_mm / area.mm_x.min(area.mm_y)).ceil() as i64;
     let reach2 = reach_mm * reach_mm;
-
-    // The nearest pixel pair of every two joined pieces.
-    let contacts: HashMap<(u32, u32), Contact> = (0..h)
-        .into_par_iter()
-        .fold(
-            || (HashMap::new(), Vec::new()),
-            |(mut best, mut edge): (HashMap<(u32, u32), Contact>, Vec<u32>), y| {
-                for &(a, b, o) in rows.row(y) {
-                    let pa = piece[o as usize];
-                    if !searches[pa as usize] {
-                        continue;
-                    }
-                    // Most runs of a joined piece have no other joined piece within reach:
-                    // skip them before looking at their pixels one by one.
-                    let (lo, hi) = (a as i64 - r, b as i64 - 1 + r);
-                    let other_near = ((y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1))
-                        .any(|ny| {
-                            let near = rows.row(ny as usize);
-                            let start = near.partition_point(|q| (q.1 as i64) <= lo);
-                            near[start..]
-                                .iter()
-                                .take_while(|q| q.0 as i64 <= hi)
-                                .any(|q| {
-                                    let pb = piece[q.2 as usize];
-                                    joined[pb as usize] && rank(pb) > rank(pa)
-                                })
-                        });
-                    if !other_near {
-                        continue;
-                    }
-                    // The piece's edge pixels in this run: its ends, and what no run of the
-                    // same piece covers above or below.
-                    edge.clear();
-                    edge.extend([a, b - 1]);
-                    if y > 0 {
-                        uncovered(rows.row(y - 1), &piece, pa, a, b, &mut edge);
-                    }
-                    if y + 1 < h {
-                        uncovered(rows.row(y + 1), &piece, pa, a, b, &mut edge);
-                    }
-                    edge.sort_unstable();
-                    edge.dedup();
-                    for &x in &edge {
-                        for ny in (y as i64 - r).max(0)..=(y as i64 + r).min(h as i64 - 1) {
-                            let dy = (ny - y as i64) as f64 * area.mm_y;
-                            let near = rows.row(ny as usize);
-                            let start = near.partition_point(|q| (q.1 as i64) <= x as i64 - r);
-                            for &(c, d, q) in &near[start..] {
-                                if c as i64 > x as i64 + r {
-                                    break;
-                                }
-                                let pb = piece[q as usize];
-                                if !joined[pb as usize] || rank(pb) <= rank(pa) || !shares(pa, pb) {
-                                    continue;
-                                }
-                                let qx = (x.clamp(c, d - 1)) as i64;
-                                let dx = (qx - x as i64) as f64 * area.mm_x;
-                                let d2 = dx * dx + dy * dy;
-                                if d2 > reach2 {
-                                    continue;
-                                }
-                                let key = (pa.min(pb), pa.max(pb));
-                                let (p1, p2) = if pa < pb {
-                                    ((x, y as u32), (qx as u32, ny as u32))
-                                } else {
-                                    ((qx as u32, ny as u32), (x, y as u32))
-                                };
-                                let e = best.entry(key).or_insert((f64::INFINITY, p1, p2));
-                                if d2 < e.0 {
-                                    *e = (d2, p1, p2);
-                                }
-                            }
-                        }
-                    }
-                }
-                (best, edge)
-            },
-        )
-        .map(|(best, _)| best)
-        .reduce(HashMap::new, |mut a, b| {
-            for (k, v) in b {
-                let e = a.entry(k).or_insert(v);
-                if v.0 < e.0 {
-                    *e = v;
-                }
-            }
-            a
-        });
+    let crop = (area.x0 as i64, area.y0 as i64, w as i64, h as i64);
+    let found: Vec<((u32, u32), Contact)> = sure
+        .open
+        .par_iter()
+        .filter_map(|(a, b, ga, gb)| {
+            let (pa, pb) = (piece[*a as usize], piece[*b as usize]);
+            let meet = Bounds {
+                min_x: ga.min_x.max(gb.min_x),
+                min_y: ga.min_y.max(gb.min_y),
+                max_x: ga.max_x.min(gb.max_x),
+                max_y: ga.max_y.min(gb.max_y),
+            };
+            nearest_pixels(spans, input.map, &meet, r, crop, &piece, (pa, pb), area)
+                .filter(|c| c.0 <= reach2)
+                .map(|c| ((pa.min(pb), pa.max(pb)), c))
+        })
+        .collect();
+    let mut contacts: HashMap<(u32, u32), Contact> = HashMap::new();
+    for (k, c) in found {
+        let e = contacts.entry(k).or_insert(c);
+        if c.0 < e.0 || (c.0 == e.0 && (c.1, c.2) < (e.1, e.2)) {
+            *e = c;
+        }
+    }
     let mut contacts: Vec<((u32, u32), Contact)> = contacts.into_iter().collect();
     contacts.sort_by(|a, b| a.1 .0.total_cmp(&b.1 .0).then(a.0.cmp(&b.0)));
     contacts.truncate(MAX_PAIRS);
@@ -358,6 +222,84 @@ pub(super) fn closed_gaps(
         })
         .collect();
     found
+}
+
+/// The nearest pixels of pieces `pa` and `pb` (`piece` maps objects to pieces) around `meet`
+/// (board mm, the two objects' grown boxes' overlap), `r` pixels beyond it, within the
+/// checked area `crop` (film pixels: x0, y0, width, height): the squared distance in mm and
+/// the two pixels in crop coordinates, the lower-numbered piece's first.
+#[allow(clippy::too_many_arguments)]
+fn nearest_pixels(
+    spans: &DesignSpans,
+    map: &DeviceMap,
+    meet: &Bounds,
+    r: i64,
+    crop: (i64, i64, i64, i64),
+    piece: &[u32],
+    (pa, pb): (u32, u32),
+    area: &Area,
+) -> Option<Contact> {
+    let (ax, ay) = map.to_px(Point::new(meet.min_x, meet.min_y));
+    let (bx, by) = map.to_px(Point::new(meet.max_x, meet.max_y));
+    let x0 = (ax.min(bx).floor() as i64 - r - 1).max(crop.0);
+    let x1 = (ax.max(bx).ceil() as i64 + r + 1).min(crop.0 + crop.2);
+    let y0 = (ay.min(by).floor() as i64 - r - 1).max(crop.1);
+    let y1 = (ay.max(by).ceil() as i64 + r + 1).min(crop.1 + crop.3);
+    if x0 >= x1 || y0 >= y1 {
+        return None;
+    }
+    let rows = spans.window_runs(
+        x0 as usize,
+        y0 as usize,
+        (x1 - x0) as usize,
+        (y1 - y0) as usize,
+    );
+    let (lo, hi) = (pa.min(pb), pa.max(pb));
+    let of = |row: &[(u32, u32, u32)], want: u32| -> Vec<(u32, u32)> {
+        row.iter()
+            .filter(|q| piece[q.2 as usize] == want)
+            .map(|q| (q.0, q.1))
+            .collect()
+    };
+    let lows: Vec<Vec<(u32, u32)>> = rows.iter().map(|row| of(row, lo)).collect();
+    let highs: Vec<Vec<(u32, u32)>> = rows.iter().map(|row| of(row, hi)).collect();
+    let mut best: Option<Contact> = None;
+    for (y, row) in lows.iter().enumerate() {
+        for &(a, b) in row {
+            let ys = y.saturating_sub(r as usize)..(y + r as usize + 1).min(highs.len());
+            for (ny, other) in highs[ys.clone()]
+                .iter()
+                .enumerate()
+                .map(|(k, o)| (ys.start + k, o))
+            {
+                let dy = (ny as f64 - y as f64) * area.mm_y;
+                for &(c, d) in other {
+                    // The nearest columns of [a, b) and [c, d).
+                    let (px, qx) = if b <= c {
+                        (b - 1, c)
+                    } else if d <= a {
+                        (a, d - 1)
+                    } else {
+                        let x = a.max(c);
+                        (x, x)
+                    };
+                    let dx = (f64::from(qx) - f64::from(px)) * area.mm_x;
+                    let d2 = dx * dx + dy * dy;
+                    let at = |x: u32, y: usize| {
+                        (
+                            (x as i64 + x0 - crop.0) as u32,
+                            (y as i64 + y0 - crop.1) as u32,
+                        )
+                    };
+                    let c = (d2, at(px, y), at(qx, ny));
+                    if best.is_none_or(|e| c.0 < e.0 || (c.0 == e.0 && (c.1, c.2) < (e.1, e.2))) {
+                        best = Some(c);
+                    }
+                }
+            }
+        }
+    }
+    best
 }
 
 /// Whether the film is copper along the segment between the centres of two pixels.

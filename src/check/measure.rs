@@ -273,13 +273,6 @@ impl Labels {
         row.get(i).filter(|r| (r.0 as usize) <= x).map(|r| r.2)
     }
 
-    /// The label of the first set pixel among columns `x0..x1` of row `y`, if any.
-    pub fn first_in(&self, y: usize, x0: usize, x1: usize) -> Option<u32> {
-        let row = self.rows.get(y)?;
-        let i = row.partition_point(|r| (r.1 as usize) <= x0);
-        row.get(i).filter(|r| (r.0 as usize) < x1).map(|r| r.2)
-    }
-
     /// Which labels the components of `residue` (pixels without a label) touch along
     /// pixel edges. One sweep over the runs of both, row by row: looking up each pixel's
     /// neighbours instead jumps about the bitmaps and waits on memory.

@@ -23,6 +23,7 @@ pub mod cli;
 mod joins;
 mod measure;
 mod objects;
+mod pieces;
 mod report;
 
 pub use report::{check_line, check_text, kind_advice, kind_words};
@@ -545,7 +546,7 @@ pub fn check_film(
                         },
                     )
                 },
-                || joins::closed_gaps(input, &material, &labels, &area, limits.min_gap_mm),
+                || joins::closed_gaps(input, &material, &area, limits.min_gap_mm),
             );
             let copper = merge(copper, gap_px);
             // Drill-centre marks are intended holes in the copper, not gaps.

@@ -46,47 +46,6 @@ impl PaintOp {
     }
 }
 
-/// The design's runs on a film's rows (or a window of them) and the pairs of objects that
-/// share a pixel.
-#[derive(Debug, Clone, PartialEq, Eq, Default)]
-pub struct DesignRuns {
-    /// The rows in bands of [`ROWS_PER_TASK`], as painted: one painting task's output is kept
-    /// as it is rather than copied into one list (the runs of a large board are tens of MB).
-    bands: Vec<RunBand>,
-    /// Rows held.
-    height: usize,
-    /// Pairs (later object, earlier object) that share a pixel; a pair may repeat.
-    pub overlaps: Vec<(u32, u32)>,
-}
-
-/// Consecutive rows' runs: sorted and disjoint within a row. Object indices are positions in
-/// the rendered object list.
-#[derive(Debug, Clone, PartialEq, Eq)]
-struct RunBand {
-    runs: Vec<Run>,
-    /// Where each row's runs start in `runs`; one more entry than rows.
-    starts: Vec<u32>,
-}
-
-impl DesignRuns {
-    /// Rows held.
-    pub fn height(&self) -> usize {
-        self.height
-    }
-
-    /// The runs of row `y` (empty beyond the last row).
-    pub fn row(&self, y: usize) -> &[Run] {
-        let Some(band) = self.bands.get(y / ROWS_PER_TASK) else {
-            return &[];
-        };
-        let j = y % ROWS_PER_TASK;
-        match (band.starts.get(j), band.starts.get(j + 1)) {
-            (Some(&a), Some(&b)) => &band.runs[a as usize..b as usize],
-            _ => &[],
-        }
-    }
-}
-
 /// The layer's spans as the renderer painted them: per row, in drawing order. Recording them
 /// costs the renderer little; [`DesignSpans::runs`] paints them into [`DesignRuns`] for
 /// whoever needs those (the process check, which runs beside the sheets of the films job).
@@ -105,9 +64,6 @@ impl Default for DesignSpans {
         }
     }
 }
-
-/// Rows painted together by one task of [`DesignSpans::runs`].
-const ROWS_PER_TASK: usize = 64;
 
 impl DesignSpans {
     /// Rows held.
@@ -132,83 +88,54 @@ impl DesignSpans {
         self.starts
             .extend(other.starts[1..].iter().map(|&s| s + base));
     }
+}
 
-    /// Paints every row: the runs and the pairs of objects that share a pixel. Rows are
-    /// painted in parallel groups; the result does not depend on the grouping.
-    pub fn runs(&self) -> DesignRuns {
-        self.runs_in(0, 0, u32::MAX as usize, self.height())
+impl DesignSpans {
+    /// The pairs of objects that share a pixel on the given rows (half-open ranges of film
+    /// rows, in any order; rows beyond the film are left out), each row painted once.
+    pub fn overlaps_on_rows(&self, ranges: &[(usize, usize)]) -> Vec<(u32, u32)> {
+        let mut ranges: Vec<(usize, usize)> = ranges
+            .iter()
+            .map(|&(a, b)| (a, b.min(self.height())))
+            .filter(|&(a, b)| a < b)
+            .collect();
+        ranges.sort_unstable();
+        let mut painter = RowPainter::default();
+        let mut overlaps = Overlaps::new();
+        let mut scratch = Vec::new();
+        let mut next = 0;
+        for (a, b) in ranges {
+            for y in a.max(next)..b {
+                scratch.clear();
+                painter.paint_row(self.row(y), &mut overlaps, &mut scratch, 0);
+            }
+            next = next.max(b);
+        }
+        overlaps.pairs
     }
 
-    /// Paints every row for the pairs of objects that share a pixel, and keeps the runs of
-    /// the `w × h` window whose top-left pixel is (`x0`, `y0`), in window coordinates (rows
-    /// beyond the film are empty). The same as cutting the window out of [`Self::runs`],
-    /// without painting all runs first and copying the window's out of them.
-    pub fn runs_in(&self, x0: usize, y0: usize, w: usize, h: usize) -> DesignRuns {
-        use rayon::prelude::*;
-        let film_h = self.height();
+    /// The runs of the `w × h` window whose top-left pixel is (`x0`, `y0`), row by row, in
+    /// window coordinates (rows beyond the film are empty). Only the window's rows are
+    /// painted.
+    pub fn window_runs(&self, x0: usize, y0: usize, w: usize, h: usize) -> Vec<Vec<Run>> {
         let (cx0, cx1) = (
             x0.min(u32::MAX as usize) as u32,
             x0.saturating_add(w).min(u32::MAX as usize) as u32,
         );
-        // Tasks: bands of the window's rows (their runs are kept), then the rows outside the
-        // window (only their pairs are).
-        let kept = h.min(film_h.saturating_sub(y0));
-        let mut tasks: Vec<(usize, usize, bool)> = (0..kept.div_ceil(ROWS_PER_TASK))
-            .map(|t| {
-                let a = y0 + t * ROWS_PER_TASK;
-                (a, (a + ROWS_PER_TASK).min(y0 + kept), true)
+        let mut painter = RowPainter::default();
+        let mut overlaps = Overlaps::new();
+        (y0..y0 + h)
+            .map(|y| {
+                let mut runs = Vec::new();
+                if y < self.height() {
+                    painter.paint_row(self.row(y), &mut overlaps, &mut runs, 0);
+                    clip_row(&mut runs, 0, cx0, cx1);
+                }
+                runs
             })
-            .collect();
-        for (lo, hi) in [
-            (0, y0.min(film_h)),
-            ((y0 + kept).max(y0.min(film_h)), film_h),
-        ] {
-            let mut a = lo;
-            while a < hi {
-                tasks.push((a, (a + ROWS_PER_TASK).min(hi), false));
-                a += ROWS_PER_TASK;
-            }
-        }
-        let parts: Vec<PaintedBand> = tasks
-            .into_par_iter()
-            .map_init(
-                || (RowPainter::default(), Overlaps::new(), Vec::new()),
-                |(painter, overlaps, scratch), (a, b, keep)| {
-                    let mut band = RunBand {
-                        runs: Vec::new(),
-                        starts: Vec::with_capacity(b - a + 1),
-                    };
-                    band.starts.push(0);
-                    for y in a..b {
-                        if keep {
-                            let from = band.runs.len();
-                            painter.paint_row(self.row(y), overlaps, &mut band.runs, from);
-                            clip_row(&mut band.runs, from, cx0, cx1);
-                            band.starts.push(band.runs.len() as u32);
-                        } else {
-                            scratch.clear();
-                            painter.paint_row(self.row(y), overlaps, scratch, 0);
-                        }
-                    }
-                    let pairs = std::mem::take(&mut overlaps.pairs);
-                    (keep.then_some(band), pairs)
-                },
-            )
-            .collect();
-        let mut all = DesignRuns {
-            height: h,
-            ..Default::default()
-        };
-        for (band, pairs) in parts {
-            all.bands.extend(band);
-            all.overlaps.extend(pairs);
-        }
-        all
+            .collect()
     }
 }
-
-/// One painting task's kept runs (none for rows outside the window) and its pairs.
-type PaintedBand = (Option<RunBand>, Vec<(u32, u32)>);
 
 /// Cuts the runs `runs[from..]` (one row) to columns `[x0, x1)` and shifts them to start at
 /// column `x0`.
@@ -517,10 +444,12 @@ mod tests {
 
     #[test]
     fn window_runs_are_the_cut_out_runs() {
-        // Cutting a window out of all runs by hand (the definition) must give the window's
-        // runs, for windows inside, across and beyond the film's edges, and the same pairs.
+        // Cutting a window out of each row painted whole by hand (the definition) must give
+        // the window's runs, for windows inside, across and beyond the film's edges; the
+        // pairs of a set of row ranges are those of its rows painted one by one.
         let mut spans = DesignSpans::default();
         let mut next = numbers(7);
+        let mut rows = Vec::new();
         for _ in 0..300 {
             let ops: Vec<Op> = (0..next(8))
                 .map(|k| {
@@ -529,28 +458,38 @@ mod tests {
                 })
                 .collect();
             spans.push_row(&packed(&ops));
+            rows.push(ops);
         }
-        let all = spans.runs();
-        let mut want_pairs = all.overlaps.clone();
-        want_pairs.sort_unstable();
-        want_pairs.dedup();
+        let painted: Vec<_> = rows
+            .iter()
+            .map(|ops| painted_pixel_by_pixel(ops, 120))
+            .collect();
         for (x0, y0, w, h) in [(0, 0, 120, 300), (10, 70, 40, 100), (50, 250, 100, 200)] {
-            let cut = spans.runs_in(x0, y0, w, h);
-            assert_eq!(cut.height(), h);
-            for y in 0..h {
+            let cut = spans.window_runs(x0, y0, w, h);
+            assert_eq!(cut.len(), h);
+            for (y, got) in cut.iter().enumerate() {
                 let (a, b) = (x0 as u32, (x0 + w) as u32);
-                let want: Vec<Run> = all
-                    .row(y0 + y)
+                let want: Vec<Run> = painted
+                    .get(y0 + y)
+                    .map_or(&[][..], |p| &p.0[..])
                     .iter()
                     .filter(|r| r.1 > a && r.0 < b)
                     .map(|&(c, d, o)| (c.max(a) - a, d.min(b) - a, o))
                     .collect();
-                assert_eq!(cut.row(y), &want[..], "window {x0} {y0}, row {y}");
+                assert_eq!(got, &want, "window {x0} {y0}, row {y}");
             }
-            let mut pairs = cut.overlaps.clone();
-            pairs.sort_unstable();
-            pairs.dedup();
-            assert_eq!(pairs, want_pairs);
+        }
+        for ranges in [vec![(0, 300)], vec![(40, 60), (10, 50), (290, 400)]] {
+            let mut want: Vec<(u32, u32)> = (0..300)
+                .filter(|y| ranges.iter().any(|&(a, b)| (a..b).contains(y)))
+                .flat_map(|y| painted[y].1.clone())
+                .collect();
+            want.sort_unstable();
+            want.dedup();
+            let mut got = spans.overlaps_on_rows(&ranges);
+            got.sort_unstable();
+            got.dedup();
+            assert_eq!(got, want, "{ranges:?}");
         }
     }
 

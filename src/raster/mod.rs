@@ -6,7 +6,7 @@
 //!   mirror, stretch correction), serializable as an explicit affine.
 //! - [`render`]: objects in order → bitmap, by pixel centres, in parallel bands.
 //! - [`render_with_design`]: the same, plus the spans it painted ([`DesignSpans`]), which
-//!   paint into which object each pixel shows ([`DesignRuns`]).
+//!   paint into which object each pixel shows ([`DesignSpans`]).
 //! - [`morphology`]: grow/shrink the composed film by a disc, opening and closing.
 
 mod bitmap;
@@ -19,6 +19,6 @@ pub(crate) mod shift;
 mod spans;
 
 pub use bitmap::Bitmap;
-pub use design::{DesignRuns, DesignSpans, Run};
+pub use design::{DesignSpans, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
 pub use render::{render, render_with, render_with_design, RenderOptions};

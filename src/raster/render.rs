@@ -281,11 +281,11 @@ mod tests {
             let mut map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
             map.mirror = mirror;
             let (film, spans) = render_with_design(&objects, &map, &RenderOptions::serial());
-            let design = spans.runs();
+            let design = spans.window_runs(0, 0, map.width, map.height);
             assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
-            assert_eq!(design.height(), map.height);
+            assert_eq!(design.len(), map.height);
             let mut dark = 0;
-            for j in 0..map.height {
+            for (j, row) in design.iter().enumerate() {
                 let y = 0.1 * (map.height as f64 - j as f64 - 0.5);
                 for c in 0..map.width {
                     let i = if mirror { map.width - 1 - c } else { c };
@@ -302,10 +302,7 @@ mod tests {
                     } else {
                         None
                     };
-                    let run = design
-                        .row(j)
-                        .iter()
-                        .find(|r| r.0 as usize <= c && c < r.1 as usize);
+                    let run = row.iter().find(|r| r.0 as usize <= c && c < r.1 as usize);
                     assert_eq!(run.map(|r| r.2), want, "pixel ({c}, {j}), mirror {mirror}");
                     assert_eq!(film.get(c, j), want.is_some(), "film pixel ({c}, {j})");
                     dark += want.is_some() as usize;
@@ -315,7 +312,7 @@ mod tests {
             // 9 pixels), plus the part of the 100-pixel pad beyond the disc (about 50).
             assert!((330..380).contains(&dark), "{dark}");
             // The pad shares pixels with the disc; the clear square joins nothing.
-            let mut pairs = design.overlaps.clone();
+            let mut pairs = spans.overlaps_on_rows(&[(0, map.height)]);
             pairs.sort_unstable();
             pairs.dedup();
             assert_eq!(pairs, vec![(1, 0)]);

@@ -10,6 +10,10 @@
 #[path = "support/mod.rs"]
 mod support;
 
+/// The allocator of the `umbra` binary (src/main.rs), so that the figures are the command's.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 use support::{best_s, load_average};
 use umbra::process::Profile;
 

@@ -19,6 +19,10 @@
 #[path = "support/mod.rs"]
 mod support;
 
+/// The allocator of the `umbra` binary (src/main.rs), so that the figures are the command's.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 use support::{best_s, cpu_s, load_average};

@@ -27,6 +27,8 @@ use crate::vector::flatten::{chords_for, Flattener};
 
 /// Sample points along a capsule's axis tried as witnesses inside a polygon, at most.
 const AXIS_SAMPLES: usize = 16;
+/// Most bands of a polygon's edge index.
+const MAX_BANDS: usize = 4096;
 /// Distances along a corner's bisector tried as witnesses (halving each time).
 const CORNER_STEPS: u32 = 5;
 /// Largest grid of cells for the pair search (cells per side, at most).
@@ -44,10 +46,113 @@ enum Part {
         r_out: f64,
     },
     Poly {
-        pts: Vec<Point>,
+        outline: Box<Outline>,
         /// How far the flattened contour may lie from the drawn one.
         tol: f64,
     },
+}
+
+/// A flattened contour with its edges indexed by horizontal bands, so that questions about
+/// one place of a large pour look at the edges near it only.
+#[derive(Debug, Clone)]
+struct Outline {
+    pts: Vec<Point>,
+    bounds: Bounds,
+    /// The vertices' average.
+    average: Point,
+    band_h: f64,
+    /// Edges (by index of their first point) whose height range meets each band.
+    bands: Vec<Vec<u32>>,
+}
+
+impl Outline {
+    fn new(pts: Vec<Point>) -> Outline {
+        let mut bounds = Bounds::EMPTY;
+        for &p in &pts {
+            bounds.add_point(p);
+        }
+        let n = pts.len();
+        let count = (n / 4).clamp(1, MAX_BANDS);
+        let band_h = (bounds.height() / count as f64).max(1e-9);
+        let mut outline = Outline {
+            average: average(&pts),
+            pts,
+            bounds,
+            band_h,
+            bands: vec![Vec::new(); count],
+        };
+        for i in 0..n {
+            let (p, q) = outline.edge(i as u32);
+            let (a, b) = (outline.band(p.y.min(q.y)), outline.band(p.y.max(q.y)));
+            for band in &mut outline.bands[a..=b] {
+                band.push(i as u32);
+            }
+        }
+        outline
+    }
+
+    fn edge(&self, i: u32) -> (Point, Point) {
+        let i = i as usize;
+        (self.pts[i], self.pts[(i + 1) % self.pts.len()])
+    }
+
+    fn band(&self, y: f64) -> usize {
+        (((y - self.bounds.min_y) / self.band_h).floor().max(0.0) as usize)
+            .min(self.bands.len() - 1)
+    }
+
+    /// Edges that may come within the rows `lo..=hi` (an edge may come more than once).
+    fn near(&self, lo: f64, hi: f64) -> impl Iterator<Item = (Point, Point)> + '_ {
+        let (a, b) = if hi < self.bounds.min_y || lo > self.bounds.max_y {
+            (1, 0)
+        } else {
+            (self.band(lo), self.band(hi))
+        };
+        self.bands[a.min(self.bands.len())..(b + 1).min(self.bands.len())]
+            .iter()
+            .flatten()
+            .map(|&i| self.edge(i))
+    }
+
+    /// Winding number about `c` (crossings of the ray to +x): the edges of `c`'s band hold
+    /// every edge whose height range contains `c.y`.
+    fn winding(&self, c: Point) -> i32 {
+        if c.y < self.bounds.min_y || c.y > self.bounds.max_y {
+            return 0;
+        }
+        let mut w = 0;
+        for &i in &self.bands[self.band(c.y)] {
+            let (p, q) = self.edge(i);
+            if p.y <= c.y {
+                if q.y > c.y && cross(p, q, c) > 0.0 {
+                    w += 1;
+                }
+            } else if q.y <= c.y && cross(p, q, c) < 0.0 {
+                w -= 1;
+            }
+        }
+        w
+    }
+
+    /// When `c` is inside (non-zero winding): its distance to the contour, or `cap` when no
+    /// edge is nearer.
+    fn depth(&self, c: Point, cap: f64) -> Option<f64> {
+        if self.winding(c) == 0 {
+            return None;
+        }
+        let d2 = self
+            .near(c.y - cap, c.y + cap)
+            .map(|(p, q)| point_segment2(c, p, q))
+            .fold(cap * cap, f64::min);
+        Some(d2.sqrt())
+    }
+
+    /// Whether an edge comes within `limit` of the segment a–b.
+    fn within(&self, a: Point, b: Point, limit: f64) -> bool {
+        let l2 = limit * limit;
+        self.near(a.y.min(b.y) - limit, a.y.max(b.y) + limit)
+            .any(|(p, q)| seg_distance2_above(a, b, p, q, l2) <= l2)
+    }
 }
 
 /// A Dark object as parts (their union), and whether the union is exactly the object.
@@ -207,7 +312,7 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
                         continue;
                     }
                 }
-                if lower_distance(a, b) <= threshold {
+                if close(a, b, threshold) {
                     open.push((ka, kb));
                 }
             }
@@ -292,7 +397,10 @@ fn parts_of(shape: &Shape, fl: &Flattener, tol: f64, out: &mut Vec<Part>) -> boo
         Shape::Polygon(c) => {
             let pts = fl.contour(c);
             if pts.len() >= 3 {
-                out.push(Part::Poly { pts, tol });
+                out.push(Part::Poly {
+                    outline: Box::new(Outline::new(pts)),
+                    tol,
+                });
             }
             true
         }
@@ -361,78 +469,98 @@ fn sure_part_overlap(pa: &Part, pb: &Part, need: f64) -> Option<(Point, f64)> {
             };
             Some((c, r))
         }
-        (Part::Capsule { a, b, r_in, .. }, Part::Poly { pts, tol })
-        | (Part::Poly { pts, tol }, Part::Capsule { a, b, r_in, .. }) => {
+        (Part::Capsule { a, b, r_in, .. }, Part::Poly { outline, tol })
+        | (Part::Poly { outline, tol }, Part::Capsule { a, b, r_in, .. }) => {
             if *r_in < need {
                 return None;
             }
             // Points of the axis within the polygon's box, evenly spread; then the polygon's
             // vertex average (a track or pad ending inside a pad).
-            let (t0, t1) = clip_to_box(*a, *b, &bounds_of(pts))?;
+            let (t0, t1) = clip_to_box(*a, *b, &outline.bounds)?;
             let on_axis = (0..=AXIS_SAMPLES).map(|k| {
                 let t = t0 + (t1 - t0) * k as f64 / AXIS_SAMPLES as f64;
                 Point::new(a.x + (b.x - a.x) * t, a.y + (b.y - a.y) * t)
             });
             // And points inside the polygon's corners that lie in the capsule: a track
             // crossing a pad's corner.
-            let corners = inner_corner_points(pts, |v| point_segment2(v, *a, *b) < r_in * r_in);
-            on_axis.chain([average(pts)]).chain(corners).find_map(|c| {
-                let inside_capsule = r_in - point_segment2(c, *a, *b).sqrt();
-                let r = (depth_in(pts, c)? - tol).min(inside_capsule);
-                (r >= need).then_some((c, r))
-            })
+            let (lo, hi) = (a.y.min(b.y) - r_in, a.y.max(b.y) + r_in);
+            let corners =
+                inner_corner_points(outline, lo, hi, |v| point_segment2(v, *a, *b) < r_in * r_in);
+            on_axis
+                .chain([outline.average])
+                .chain(corners)
+                .find_map(|c| {
+                    let inside_capsule = r_in - point_segment2(c, *a, *b).sqrt();
+                    let r = (outline.depth(c, 2.0 * need + tol)? - tol).min(inside_capsule);
+                    (r >= need).then_some((c, r))
+                })
         }
-        (Part::Poly { pts: pa, tol: ta }, Part::Poly { pts: pb, tol: tb }) => {
+        (
+            Part::Poly {
+                outline: pa,
+                tol: ta,
+            },
+            Part::Poly {
+                outline: pb,
+                tol: tb,
+            },
+        ) => {
             // Each polygon's vertex average and the middle of the boxes' overlap, when deep
             // inside both.
-            let (ba, bb) = (bounds_of(pa), bounds_of(pb));
+            let (ba, bb) = (pa.bounds, pb.bounds);
             let mid = Point::new(
                 0.5 * (ba.min_x.max(bb.min_x) + ba.max_x.min(bb.max_x)),
                 0.5 * (ba.min_y.max(bb.min_y) + ba.max_y.min(bb.max_y)),
             );
-            [average(pa), average(pb), mid].into_iter().find_map(|c| {
-                let r = (depth_in(pa, c)? - ta).min(depth_in(pb, c)? - tb);
+            [pa.average, pb.average, mid].into_iter().find_map(|c| {
+                let cap = 2.0 * need + ta.max(*tb);
+                let r = (pa.depth(c, cap)? - ta).min(pb.depth(c, cap)? - tb);
                 (r >= need).then_some((c, r))
             })
         }
     }
 }
 
-/// Points along the inner bisector of each convex corner `v` of the polygon with `near(v)`,
-/// at a few distances up to half the polygon's smaller side.
+/// Points along the inner bisector of each convex corner `v` of the outline between heights
+/// `lo` and `hi` with `near(v)`, at a few distances up to half the polygon's smaller side.
 fn inner_corner_points<'a>(
-    pts: &'a [Point],
+    outline: &'a Outline,
+    lo: f64,
+    hi: f64,
     near: impl Fn(Point) -> bool + 'a,
 ) -> impl Iterator<Item = Point> + 'a {
-    let b = bounds_of(pts);
+    let b = outline.bounds;
     let reach = 0.5 * b.width().min(b.height());
+    let pts = &outline.pts;
     let n = pts.len();
-    (0..n).filter(move |&i| near(pts[i])).flat_map(move |i| {
-        let v = pts[i];
-        let unit = |p: Point| {
-            let l = v.dist(p);
-            if l > 0.0 {
-                ((p.x - v.x) / l, (p.y - v.y) / l)
-            } else {
-                (0.0, 0.0)
-            }
-        };
-        let (u, w) = (unit(pts[(i + n - 1) % n]), unit(pts[(i + 1) % n]));
-        let (bx, by) = (u.0 + w.0, u.1 + w.1);
-        let l = bx.hypot(by);
-        (0..CORNER_STEPS).filter(move |_| l > 1e-9).map(move |k| {
-            let d = reach / f64::from(1u32 << k);
-            Point::new(v.x + bx / l * d, v.y + by / l * d)
+    let (a, z) = if hi < b.min_y || lo > b.max_y {
+        (1, 0)
+    } else {
+        (outline.band(lo), outline.band(hi))
+    };
+    outline.bands[a.min(outline.bands.len())..(z + 1).min(outline.bands.len())]
+        .iter()
+        .flatten()
+        .map(|&i| i as usize)
+        .filter(move |&i| near(pts[i]))
+        .flat_map(move |i| {
+            let v = pts[i];
+            let unit = |p: Point| {
+                let l = v.dist(p);
+                if l > 0.0 {
+                    ((p.x - v.x) / l, (p.y - v.y) / l)
+                } else {
+                    (0.0, 0.0)
+                }
+            };
+            let (u, w) = (unit(pts[(i + n - 1) % n]), unit(pts[(i + 1) % n]));
+            let (bx, by) = (u.0 + w.0, u.1 + w.1);
+            let l = bx.hypot(by);
+            (0..CORNER_STEPS).filter(move |_| l > 1e-9).map(move |k| {
+                let d = reach / f64::from(1u32 << k);
+                Point::new(v.x + bx / l * d, v.y + by / l * d)
+            })
         })
-    })
-}
-
-fn bounds_of(pts: &[Point]) -> Bounds {
-    let mut b = Bounds::EMPTY;
-    for &p in pts {
-        b.add_point(p);
-    }
-    b
 }
 
 /// The parameter range `[t0, t1]` of the segment a–b inside the box, if any (Liang–Barsky).
@@ -461,21 +589,14 @@ fn clip_to_box(a: Point, b: Point, bx: &Bounds) -> Option<(f64, f64)> {
     (t0 <= t1).then_some((t0, t1))
 }
 
-/// A lower bound of the distance between two objects (0 when they may overlap).
-fn lower_distance(a: &Geom, b: &Geom) -> f64 {
-    let mut best = f64::INFINITY;
-    for pa in &a.parts {
-        for pb in &b.parts {
-            best = best.min(part_distance(pa, pb));
-            if best <= 0.0 {
-                return 0.0;
-            }
-        }
-    }
-    best
+/// Whether two objects may come within `limit` of each other (surely not when false).
+fn close(a: &Geom, b: &Geom, limit: f64) -> bool {
+    a.parts
+        .iter()
+        .any(|pa| b.parts.iter().any(|pb| parts_close(pa, pb, limit)))
 }
 
-fn part_distance(pa: &Part, pb: &Part) -> f64 {
+fn parts_close(pa: &Part, pb: &Part, limit: f64) -> bool {
     match (pa, pb) {
         (
             &Part::Capsule {
@@ -490,70 +611,42 @@ fn part_distance(pa: &Part, pb: &Part) -> f64 {
                 r_out: rb,
                 ..
             },
-        ) => (seg_distance2(a0, a1, b0, b1).0.sqrt() - ra - rb).max(0.0),
-        (Part::Capsule { a, b, r_out, .. }, Part::Poly { pts, tol })
-        | (Part::Poly { pts, tol }, Part::Capsule { a, b, r_out, .. }) => {
-            if winding(pts, *a) != 0 {
-                return 0.0;
-            }
-            let mut d2 = f64::INFINITY;
-            for (p, q) in edges(pts) {
-                d2 = d2.min(seg_distance2_above(*a, *b, p, q, d2));
-            }
-            (d2.sqrt() - r_out - tol).max(0.0)
+        ) => seg_distance2(a0, a1, b0, b1).0 <= (limit + ra + rb).powi(2),
+        (Part::Capsule { a, b, r_out, .. }, Part::Poly { outline, tol })
+        | (Part::Poly { outline, tol }, Part::Capsule { a, b, r_out, .. }) => {
+            outline.winding(*a) != 0 || outline.within(*a, *b, limit + r_out + tol)
         }
-        (Part::Poly { pts: pa, tol: ta }, Part::Poly { pts: pb, tol: tb }) => {
-            if winding(pb, pa[0]) != 0 || winding(pa, pb[0]) != 0 {
-                return 0.0;
+        (
+            Part::Poly {
+                outline: pa,
+                tol: ta,
+            },
+            Part::Poly {
+                outline: pb,
+                tol: tb,
+            },
+        ) => {
+            if pb.winding(pa.pts[0]) != 0 || pa.winding(pb.pts[0]) != 0 {
+                return true;
             }
-            let mut d2 = f64::INFINITY;
-            for (p, q) in edges(pa) {
-                for (r, s) in edges(pb) {
-                    d2 = d2.min(seg_distance2_above(p, q, r, s, d2));
-                }
-            }
-            (d2.sqrt() - ta - tb).max(0.0)
+            let (small, large) = if pa.pts.len() <= pb.pts.len() {
+                (pa, pb)
+            } else {
+                (pb, pa)
+            };
+            let l = limit + ta + tb;
+            (0..small.pts.len() as u32).any(|i| {
+                let (p, q) = small.edge(i);
+                large.within(p, q, l)
+            })
         }
     }
-}
-
-/// The closed contour's edges.
-fn edges(pts: &[Point]) -> impl Iterator<Item = (Point, Point)> + '_ {
-    (0..pts.len()).map(move |i| (pts[i], pts[(i + 1) % pts.len()]))
 }
 
 fn average(pts: &[Point]) -> Point {
     let n = pts.len() as f64;
     let (sx, sy) = pts.iter().fold((0.0, 0.0), |(x, y), p| (x + p.x, y + p.y));
     Point::new(sx / n, sy / n)
-}
-
-/// The distance from `c` to the contour when `c` is inside it (non-zero winding), else `None`.
-fn depth_in(pts: &[Point], c: Point) -> Option<f64> {
-    if winding(pts, c) == 0 {
-        return None;
-    }
-    Some(
-        edges(pts)
-            .map(|(p, q)| point_segment2(c, p, q))
-            .fold(f64::INFINITY, f64::min)
-            .sqrt(),
-    )
-}
-
-/// Winding number of the closed contour about `c` (crossings of the ray to +x).
-fn winding(pts: &[Point], c: Point) -> i32 {
-    let mut w = 0;
-    for (p, q) in edges(pts) {
-        if p.y <= c.y {
-            if q.y > c.y && cross(p, q, c) > 0.0 {
-                w += 1;
-            }
-        } else if q.y <= c.y && cross(p, q, c) < 0.0 {
-            w -= 1;
-        }
-    }
-    w
 }
 
 fn cross(o: Point, a: Point, b: Point) -> f64 {

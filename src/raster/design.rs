@@ -47,8 +47,9 @@ impl PaintOp {
 }
 
 /// The layer's spans as the renderer painted them: per row, in drawing order. Recording them
-/// costs the renderer little; [`DesignSpans::runs`] paints them into [`DesignRuns`] for
-/// whoever needs those (the process check, which runs beside the sheets of the films job).
+/// costs the renderer little; [`DesignSpans::window_runs`] and
+/// [`DesignSpans::overlaps_on_rows`] paint the rows someone asks for (the process check's
+/// closed-gap search, which runs beside the sheets of the films job).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DesignSpans {
     ops: Vec<PaintOp>,

@@ -3,9 +3,8 @@
 //!
 //! Run with `cargo bench --bench check`. Prints the best of three runs of the whole films job
 //! (which includes the check), of the same job without check and proof (films, layout, sheets,
-//! PDF, as `films::run` does them), of the films rendered with and without the design runs the
-//! check needs, and of the check and the proof alone. The overhead is the
-//! job's time over the reference's; the target is at most 50 %.
+//! PDF, as `films::run` does them), of the films rendered, and of the check and the proof
+//! alone. The overhead is the job's time over the reference's; the target is at most 50 %.
 
 #[path = "support/mod.rs"]
 mod support;
@@ -78,12 +77,8 @@ fn main() {
             .collect();
         umbra::output::pdf::write_pdf(&out.join("films.pdf"), &pdf).unwrap();
     });
-    // The films as the job makes them: copper films record which object each pixel shows.
-    let (t_plain, c_plain, _) = best_s(3, || {
+    let (t_plain, c_plain, (films, frame, _)) = best_s(3, || {
         umbra::films::make_films(&board, &profile, None, "bench", "2026-01-01").unwrap()
-    });
-    let (t_recorded, c_recorded, (films, frame, _)) = best_s(3, || {
-        umbra::films::make_films_checked(&board, &profile, None, "bench", "2026-01-01").unwrap()
     });
     let (t_check, c_check, mut report) = best_s(3, || {
         umbra::check::check_films(&films, &board, &frame.board, &profile.limits)
@@ -110,10 +105,6 @@ fn main() {
         ms(t_reference, c_reference)
     );
     println!("  films rendered:                 {}", ms(t_plain, c_plain));
-    println!(
-        "  the same, with the design runs: {}",
-        ms(t_recorded, c_recorded)
-    );
     println!("  check alone:                    {}", ms(t_check, c_check));
     println!("  proof alone:                    {}", ms(t_proof, c_proof));
     println!(

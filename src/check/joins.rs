@@ -10,9 +10,9 @@
 //!    shapes, so they overlap in the design. Objects that only come within a pixel of each
 //!    other stay separate, whichever way the grid falls — that is what finds sub-pixel gaps.
 //!    The drawn geometry settles most pairs (`pieces.rs`); the pairs it leaves open are
-//!    painted at the film's pixels on the rows where they meet, from the spans recorded
-//!    while the film was rendered (`crate::raster::DesignSpans`: objects painted in order
-//!    into runs that remember which object painted each pixel last).
+//!    painted at the film's pixels on the rows where they meet: the renderer's spans of those
+//!    rows only (`crate::raster::design_rows`), painted in order into runs that remember
+//!    which object painted each pixel last.
 //! 2. **Contacts.** Two pieces can only be joined by the film where they come within the
 //!    growth's reach, which is where a pair left open lies: there, the nearest pair of their
 //!    pixels.
@@ -31,7 +31,7 @@ use super::area::Area;
 use super::pieces::sure_pieces;
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, Point, Polarity};
-use crate::raster::{render_with_design, Bitmap, DesignSpans, DeviceMap, RenderOptions};
+use crate::raster::{design_rows, Bitmap, DesignSpans, DeviceMap};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -77,30 +77,30 @@ pub(super) fn closed_gaps(
     if sure.open.is_empty() {
         return Vec::new();
     }
-    // The film's spans: the films job keeps the layer's spans from rendering the film;
-    // otherwise they are rendered again.
-    let rendered;
-    let spans = match input.design {
-        Some(spans) => spans,
-        None => {
-            rendered = render_with_design(&image.objects, input.map, &RenderOptions::default()).1;
-            &rendered
-        }
-    };
     // Open pairs that share a pixel after all: paint the rows where they meet. Every pair
     // painted there shares a pixel, so the sets stay within the design's pieces.
+    let r = (reach_mm / area.mm_x.min(area.mm_y)).ceil() as i64;
+    let rows_of = |ga: &Bounds, gb: &Bounds, grow: usize| {
+        let (y0, y1) = (ga.min_y.max(gb.min_y), ga.max_y.min(gb.max_y));
+        let (_, p0) = input.map.to_px(Point::new(0.0, y0));
+        let (_, p1) = input.map.to_px(Point::new(0.0, y1));
+        let lo = p0.min(p1).floor().max(0.0) as usize;
+        let hi = p0.max(p1).ceil().max(0.0) as usize + 1;
+        (lo.saturating_sub(grow), hi + grow)
+    };
     let rows: Vec<(usize, usize)> = sure
         .open
         .iter()
-        .map(|(_, _, ga, gb)| {
-            let (y0, y1) = (ga.min_y.max(gb.min_y), ga.max_y.min(gb.max_y));
-            let (_, p0) = input.map.to_px(Point::new(0.0, y0));
-            let (_, p1) = input.map.to_px(Point::new(0.0, y1));
-            let lo = p0.min(p1).floor().max(0.0) as usize;
-            let hi = p0.max(p1).ceil().max(0.0) as usize + 1;
-            (lo.saturating_sub(1), hi)
-        })
+        .map(|(_, _, ga, gb)| rows_of(ga, gb, 1))
         .collect();
+    // The layer's spans on those rows and on the rows around them that the contacts look
+    // at, painted for these rows only.
+    let around: Vec<(usize, usize)> = sure
+        .open
+        .iter()
+        .map(|(_, _, ga, gb)| rows_of(ga, gb, r as usize + 2))
+        .collect();
+    let spans = &design_rows(&image.objects, input.map, &around);
     for (a, b) in spans.overlaps_on_rows(&rows) {
         sure.union(a, b);
     }
@@ -116,7 +116,6 @@ pub(super) fn closed_gaps(
 
     // 2.–3. The nearest pixels of every two pieces left open, within reach: the runs of the
     // rows around each open pair, painted with their objects.
-    let r = (reach_mm / area.mm_x.min(area.mm_y)).ceil() as i64;
     let reach2 = reach_mm * reach_mm;
     let crop = (area.x0 as i64, area.y0 as i64, w as i64, h as i64);
     let found: Vec<((u32, u32), Contact)> = sure

@@ -193,14 +193,10 @@ pub struct FilmInput<'a> {
     pub film: &'a Bitmap,
     pub map: &'a DeviceMap,
     pub recipe: &'a FilmRecipe,
-    /// The layer image the film was made from (for vanishing objects).
+    /// The layer image the film was made from (for vanishing objects and closed gaps).
     pub image: Option<&'a LayerImage>,
     /// Drill files whose holes sit on this film (copper films).
     pub drills: &'a [&'a DrillFile],
-    /// The layer's spans, when recorded while rendering the film
-    /// (`crate::film::compose::render_film_recording`); otherwise the closed-gap search
-    /// renders the layer again.
-    pub design: Option<&'a crate::raster::DesignSpans>,
 }
 
 /// How far beyond the board's extents the check looks, mm: the film keeps layer artwork up
@@ -705,7 +701,6 @@ pub fn check_films(
                 recipe: &f.recipe,
                 image: image_of(&f.source),
                 drills: film_drills,
-                design: f.rendered.design.as_ref(),
             };
             check_film(&input, frame_board, limits)
         })

@@ -777,7 +777,7 @@ impl Grid {
 mod tests {
     use super::*;
     use crate::image::{Contour, Turn};
-    use crate::raster::{render_with_design, RenderOptions};
+    use crate::raster::design_rows;
 
     /// Numbers in [0, 1) from a linear congruential generator (Knuth's MMIX constants), the
     /// same on every run.
@@ -868,7 +868,7 @@ mod tests {
             for k in 0..25u64 {
                 let objects = random_layer(seed * 1000 + k);
                 let map = DeviceMap::new(Point::new(0.0, 0.0), 260, 240, dpi, dpi * 1.1);
-                let (_, spans) = render_with_design(&objects, &map, &RenderOptions::serial());
+                let spans = design_rows(&objects, &map, &[(0, map.height)]);
                 let n = objects.len() as u32;
                 let mut pixel: Vec<u32> = (0..n).collect();
                 for (a, b) in spans.overlaps_on_rows(&[(0, map.height)]) {

@@ -16,7 +16,7 @@ use crate::excellon::DrillFile;
 use crate::image::{Bounds, LayerImage, Object, Point, Polarity, Shape};
 use crate::process::{DrillMarkStyle, FilmRecipe};
 use crate::raster::morphology::{self, Pitch, RealizedOffset};
-use crate::raster::{render, render_with_design, Bitmap, DesignSpans, DeviceMap, RenderOptions};
+use crate::raster::{render, Bitmap, DeviceMap};
 use serde::Serialize;
 
 /// Sizes of the artwork umbra adds around the board (mm).
@@ -262,10 +262,6 @@ pub struct RenderedFilm {
     /// (`crate::check` measures rings on the finished film and is the one source of ring
     /// findings wherever it runs; the films job therefore renders without this check).
     pub ring_warning: Option<String>,
-    /// The layer image's spans as rendered (film columns, before drill marks, artwork and
-    /// edge offset), for the process check's closed gaps; only when asked for
-    /// ([`render_film_recording`]).
-    pub design: Option<DesignSpans>,
 }
 
 /// The device map of a film: the frame's film area at the recipe's resolution, with the
@@ -379,33 +375,11 @@ pub fn render_film_on(
     map: DeviceMap,
     min_annular_ring_mm: Option<f64>,
 ) -> RenderedFilm {
-    render_film_full(job, map, min_annular_ring_mm, false)
-}
-
-/// [`render_film_on`] without the ring check, also recording the layer's spans
-/// ([`RenderedFilm::design`]) for the process check: a copy of what the renderer computes,
-/// not a second render.
-pub fn render_film_recording(job: &FilmJob<'_>, map: DeviceMap) -> RenderedFilm {
-    render_film_full(job, map, None, true)
-}
-
-fn render_film_full(
-    job: &FilmJob<'_>,
-    map: DeviceMap,
-    min_annular_ring_mm: Option<f64>,
-    record_design: bool,
-) -> RenderedFilm {
     let recipe = job.recipe;
     let mut warnings = Vec::new();
 
     // 1. The layer image in material terms.
-    let (mut material, design) = if record_design {
-        let (bitmap, design) =
-            render_with_design(&job.image.objects, &map, &RenderOptions::default());
-        (bitmap, Some(design))
-    } else {
-        (render(&job.image.objects, &map), None)
-    };
+    let mut material = render(&job.image.objects, &map);
     if !recipe.dark_is_material {
         material.invert();
     }
@@ -490,7 +464,6 @@ fn render_film_full(
         thin_rings,
         warnings,
         ring_warning,
-        design,
     }
 }
 

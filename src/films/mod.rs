@@ -17,7 +17,7 @@ pub mod staged;
 pub mod summary;
 
 pub(crate) use plan::polarity_words;
-pub use plan::{make_films, make_films_checked, plan_films, FilmPlan, MadeFilm, PlannedFilm};
+pub use plan::{make_films, plan_films, FilmPlan, MadeFilm, PlannedFilm};
 pub use select::{board_extents, drill_files, identities, select, Selected};
 pub use sheets::{caption_shapes, compose_sheet, lay_out, piece_pixels, RenderedSheet};
 pub use staged::StagedDir;
@@ -77,8 +77,7 @@ pub fn run(
     }
     let staged = StagedDir::new(&opts.out, opts.force)?;
     progress("rendering films");
-    let (films, frame, warnings) =
-        make_films_checked(board, profile, job, &opts.board_name, &opts.date)?;
+    let (films, frame, warnings) = make_films(board, profile, job, &opts.board_name, &opts.date)?;
     // The process check and the proof picture run beside the sheets and the PDF, which are
     // mostly single-threaded compression, at a lower priority (see `background`).
     std::thread::scope(|scope| {

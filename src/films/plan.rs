@@ -182,30 +182,6 @@ pub fn make_films(
     board_name: &str,
     date: &str,
 ) -> Result<(Vec<MadeFilm>, BoardFrame, Vec<String>), FilmsError> {
-    make_films_for(board, profile, job, board_name, date, false)
-}
-
-/// [`make_films`] for a run that checks the films: copper films also keep the layer's spans
-/// as rendered (`RenderedFilm::design`), which the check's closed-gap search would otherwise
-/// render again.
-pub fn make_films_checked(
-    board: &Board,
-    profile: &Profile,
-    job: Option<&Job>,
-    board_name: &str,
-    date: &str,
-) -> Result<(Vec<MadeFilm>, BoardFrame, Vec<String>), FilmsError> {
-    make_films_for(board, profile, job, board_name, date, true)
-}
-
-fn make_films_for(
-    board: &Board,
-    profile: &Profile,
-    job: Option<&Job>,
-    board_name: &str,
-    date: &str,
-    checked: bool,
-) -> Result<(Vec<MadeFilm>, BoardFrame, Vec<String>), FilmsError> {
     let plan = plan_films(board, profile, job, board_name, date)?;
     let mut warnings = Vec::new();
     let mut made = Vec::new();
@@ -220,14 +196,7 @@ fn make_films_for(
         }
         // No ring check in the render: both callers run the process check, which measures
         // the rings on the finished film and is the one source of ring findings.
-        let record = checked
-            && s.id.function == crate::layers::LayerFunction::Copper
-            && pf.recipe.dark_is_material;
-        let rendered = if record {
-            compose::render_film_recording(&plan.job(i), map)
-        } else {
-            compose::render_film_on(&plan.job(i), map, None)
-        };
+        let rendered = compose::render_film_on(&plan.job(i), map, None);
         warnings.extend(
             rendered
                 .warnings

@@ -46,10 +46,10 @@ impl PaintOp {
     }
 }
 
-/// The layer's spans as the renderer painted them: per row, in drawing order. Recording them
-/// costs the renderer little; [`DesignSpans::window_runs`] and
-/// [`DesignSpans::overlaps_on_rows`] paint the rows someone asks for (the process check's
-/// closed-gap search, which runs beside the sheets of the films job).
+/// The layer's spans as the renderer paints them, per row in drawing order, on the rows
+/// [`super::design_rows`] was asked for; [`DesignSpans::window_runs`] and
+/// [`DesignSpans::overlaps_on_rows`] paint them into runs and pairs (the process check's
+/// closed-gap search).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DesignSpans {
     ops: Vec<PaintOp>,
@@ -72,7 +72,7 @@ impl DesignSpans {
         self.starts.len() - 1
     }
 
-    fn row(&self, y: usize) -> &[PaintOp] {
+    pub(crate) fn row(&self, y: usize) -> &[PaintOp] {
         &self.ops[self.starts[y]..self.starts[y + 1]]
     }
 
@@ -80,14 +80,6 @@ impl DesignSpans {
     pub(crate) fn push_row(&mut self, ops: &[PaintOp]) {
         self.ops.extend_from_slice(ops);
         self.starts.push(self.ops.len());
-    }
-
-    /// Appends the rows of `other` below these.
-    pub(crate) fn append(&mut self, other: DesignSpans) {
-        let base = self.ops.len();
-        self.ops.extend(other.ops);
-        self.starts
-            .extend(other.starts[1..].iter().map(|&s| s + base));
     }
 }
 

@@ -5,8 +5,8 @@
 //! - [`DeviceMap`]: board mm → device pixels of one film (separate x and y resolution,
 //!   mirror, stretch correction), serializable as an explicit affine.
 //! - [`render`]: objects in order → bitmap, by pixel centres, in parallel bands.
-//! - [`render_with_design`]: the same, plus the spans it painted ([`DesignSpans`]), which
-//!   paint into which object each pixel shows ([`DesignSpans`]).
+//! - [`design_rows`]: the spans [`render`] paints on chosen rows ([`DesignSpans`]), which
+//!   paint into which object each pixel shows.
 //! - [`morphology`]: grow/shrink the composed film by a disc, opening and closing.
 
 mod bitmap;
@@ -21,4 +21,4 @@ mod spans;
 pub use bitmap::Bitmap;
 pub use design::{DesignSpans, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
-pub use render::{render, render_with, render_with_design, RenderOptions};
+pub use render::{design_rows, render, render_with, RenderOptions};

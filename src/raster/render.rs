@@ -66,36 +66,9 @@ pub fn render(objects: &[Object], map: &DeviceMap) -> Bitmap {
 
 /// [`render`] with explicit band size and threading.
 pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) -> Bitmap {
-    render_bands(objects, map, opts, false).0
-}
-
-/// [`render`], and the spans it painted, per row in drawing order ([`DesignSpans`]): which
-/// object each dark pixel shows, once painted into runs.
-pub fn render_with_design(
-    objects: &[Object],
-    map: &DeviceMap,
-    opts: &RenderOptions,
-) -> (Bitmap, DesignSpans) {
-    let (bitmap, design) = render_bands(objects, map, opts, true);
-    (bitmap, design.unwrap_or_default())
-}
-
-fn render_bands(
-    objects: &[Object],
-    map: &DeviceMap,
-    opts: &RenderOptions,
-    record: bool,
-) -> (Bitmap, Option<DesignSpans>) {
     let mut bitmap = Bitmap::new(map.width, map.height);
     if map.width == 0 || map.height == 0 {
-        let design = record.then(|| {
-            let mut design = DesignSpans::default();
-            for _ in 0..map.height {
-                design.push_row(&[]);
-            }
-            design
-        });
-        return (bitmap, design);
+        return bitmap;
     }
     // At least one row, at most the film (also keeps `words_per_row × band_rows` small).
     let band_rows = opts.band_rows.clamp(1, map.height);
@@ -120,40 +93,103 @@ fn render_bands(
 
     let wpr = bitmap.words_per_row();
     let paint = |work: &mut BandWork, (b, chunk): (usize, &mut [u64])| {
-        paint_band(
-            chunk,
-            b * band_rows,
-            wpr,
-            &bands[b],
-            &prepared,
-            map,
-            record,
-            work,
-        )
+        paint_band(chunk, b * band_rows, wpr, &bands[b], &prepared, map, work)
     };
     let words = bitmap.words_mut();
-    let parts: Vec<Option<DesignSpans>> = if opts.parallel {
+    if opts.parallel {
         words
             .par_chunks_mut(wpr * band_rows)
             .enumerate()
-            .map_init(BandWork::default, paint)
-            .collect()
+            .for_each_init(BandWork::default, paint);
     } else {
         let mut work = BandWork::default();
         words
             .chunks_mut(wpr * band_rows)
             .enumerate()
-            .map(|band| paint(&mut work, band))
-            .collect()
-    };
-    let design = record.then(|| {
-        let mut all = DesignSpans::default();
-        for part in parts.into_iter().flatten() {
-            all.append(part);
+            .for_each(|band| paint(&mut work, band));
+    }
+    bitmap
+}
+
+/// The spans [`render`] paints for the layer, per row in drawing order ([`DesignSpans`]:
+/// which object each dark pixel shows, once painted into runs), on the given rows only
+/// (half-open ranges of film rows, in any order); every other row is empty. Only the objects
+/// reaching those rows are prepared: a few rows of a large layer cost little.
+pub fn design_rows(objects: &[Object], map: &DeviceMap, ranges: &[(usize, usize)]) -> DesignSpans {
+    let mut merged: Vec<(usize, usize)> = ranges
+        .iter()
+        .map(|&(a, b)| (a, b.min(map.height)))
+        .filter(|&(a, b)| a < b)
+        .collect();
+    merged.sort_unstable();
+    let mut ranges: Vec<(usize, usize)> = Vec::new();
+    for (a, b) in merged {
+        match ranges.last_mut() {
+            Some(last) if a <= last.1 => last.1 = last.1.max(b),
+            _ => ranges.push((a, b)),
         }
-        all
-    });
-    (bitmap, design)
+    }
+    // Objects reaching some range, in drawing order, per range.
+    let reaches = |rows: (usize, usize)| {
+        let k = ranges.partition_point(|r| r.1 <= rows.0);
+        ranges.get(k).is_some_and(|r| r.0 < rows.1)
+    };
+    let prepared: Vec<Prepared> = objects
+        .par_iter()
+        .enumerate()
+        .filter_map(|(i, o)| {
+            let b = o.shape.bounds();
+            let rows = map.rows_touching(b.min_y - 1e-9, b.max_y + 1e-9)?;
+            if !reaches(rows) {
+                return None;
+            }
+            prepare_object(o, map, i as u32)
+        })
+        .collect();
+    let rows_of: Vec<Vec<PaintOp>> = ranges
+        .par_iter()
+        .flat_map_iter(|&(a, b)| {
+            let list: Vec<&Prepared> = prepared
+                .iter()
+                .filter(|p| p.rows.0 < b && a < p.rows.1)
+                .collect();
+            let mut scratch = Scratch::default();
+            let mut spans = Vec::new();
+            let grid = map.grid();
+            (a..b)
+                .map(|row| {
+                    let mut ops = Vec::new();
+                    let y = grid.row_center_y(row);
+                    for p in list.iter().filter(|p| p.rows.0 <= row && row < p.rows.1) {
+                        shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
+                        for &(x0, x1) in spans.iter() {
+                            let (a, b) = if map.mirror {
+                                (map.width - x1, map.width - x0)
+                            } else {
+                                (x0, x1)
+                            };
+                            ops.push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
+                        }
+                    }
+                    ops
+                })
+                .collect::<Vec<_>>()
+        })
+        .collect();
+    let mut design = DesignSpans::default();
+    let mut painted = rows_of.into_iter();
+    let mut k = 0;
+    for row in 0..map.height {
+        while k < ranges.len() && ranges[k].1 <= row {
+            k += 1;
+        }
+        if k < ranges.len() && ranges[k].0 <= row {
+            design.push_row(&painted.next().unwrap_or_default());
+        } else {
+            design.push_row(&[]);
+        }
+    }
+    design
 }
 
 fn prepare_object(o: &Object, map: &DeviceMap, index: u32) -> Option<Prepared> {
@@ -185,12 +221,9 @@ fn prepare_object(o: &Object, map: &DeviceMap, index: u32) -> Option<Prepared> {
 struct BandWork {
     scratch: Scratch,
     spans: Vec<Span>,
-    /// Per row of the band, the spans in drawing order (only when recording).
-    ops: Vec<Vec<PaintOp>>,
 }
 
-/// Paints one band's rows; with `record`, also returns the band's [`DesignSpans`].
-#[allow(clippy::too_many_arguments)]
+/// Paints one band's rows.
 fn paint_band(
     chunk: &mut [u64],
     first_row: usize,
@@ -198,20 +231,11 @@ fn paint_band(
     list: &[u32],
     prepared: &[Prepared],
     map: &DeviceMap,
-    record: bool,
     work: &mut BandWork,
-) -> Option<DesignSpans> {
+) {
     let rows_here = chunk.len() / wpr;
     let end_row = first_row + rows_here;
-    let BandWork {
-        scratch,
-        spans,
-        ops,
-    } = work;
-    if record {
-        ops.resize_with(rows_here.max(ops.len()), Vec::new);
-        ops.iter_mut().for_each(Vec::clear);
-    }
+    let BandWork { scratch, spans } = work;
     let grid = map.grid();
     for &i in list {
         let p = &prepared[i as usize];
@@ -229,19 +253,9 @@ fn paint_band(
                     (x0, x1)
                 };
                 fill_row_span(words, a, b, p.dark);
-                if record {
-                    ops[row - first_row].push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
-                }
             }
         }
     }
-    record.then(|| {
-        let mut design = DesignSpans::default();
-        for row_ops in &ops[..rows_here] {
-            design.push_row(row_ops);
-        }
-        design
-    })
 }
 
 #[cfg(test)]
@@ -280,7 +294,17 @@ mod tests {
         for mirror in [false, true] {
             let mut map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
             map.mirror = mirror;
-            let (film, spans) = render_with_design(&objects, &map, &RenderOptions::serial());
+            let film = render_with(&objects, &map, &RenderOptions::serial());
+            let spans = design_rows(&objects, &map, &[(0, map.height)]);
+            // Asked for some rows only (overlapping, unordered, beyond the film): those rows
+            // the same, every other row empty.
+            let some = design_rows(&objects, &map, &[(20, 25), (3, 8), (6, 10), (28, 40)]);
+            assert_eq!(some.height(), map.height);
+            for j in 0..map.height {
+                let asked = (3..10).contains(&j) || (20..25).contains(&j) || j >= 28;
+                let want: &[_] = if asked { spans.row(j) } else { &[] };
+                assert_eq!(some.row(j), want, "row {j}");
+            }
             let design = spans.window_runs(0, 0, map.width, map.height);
             assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
             assert_eq!(design.len(), map.height);

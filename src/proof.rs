@@ -321,6 +321,22 @@ impl Samples {
 
 /// Draws the proof picture.
 pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
+    finish_proof(draw_proof_base(input), input.findings)
+}
+
+/// A proof drawn up to the findings: the board, copper, outline, holes and targets. It does
+/// not depend on the findings, so the films job draws it while the check runs.
+pub struct ProofBase {
+    canvas: Canvas,
+    title: String,
+    area: Bounds,
+    ppm: f64,
+}
+
+/// The part of [`draw_proof`] that does not need the findings (`input.findings` is not
+/// read). The legend's width comes from its entries and title: the findings line ("N
+/// finding(s), circled") is narrower than the entry for findings for any count below 10¹⁰.
+pub fn draw_proof_base(input: &ProofInput<'_>) -> ProofBase {
     let b = input.board;
     let mut area = b.grown(MARGIN_MM);
     if let Some(t) = &input.targets {
@@ -330,22 +346,14 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
     }
     let entries = legend_entries();
     let cap = LEGEND_CAP_MM;
-    let n_findings = input.findings.len();
-    let lines = [
-        input.title.clone(),
-        "as the films will make it, seen from the top".to_string(),
-        match n_findings {
-            0 => "no findings".to_string(),
-            n => format!("{n} finding(s), circled"),
-        },
-    ];
+    let lines = legend_lines(&input.title, None);
     let text_w = entries
         .iter()
         .map(|e| text_width_mm(e.0, cap) + 8.0)
         .chain(lines.iter().map(|l| text_width_mm(l, cap)))
         .fold(0.0f64, f64::max);
     let legend_w = text_w + 2.0 * MARGIN_MM;
-    let legend_h = (lines.len() + entries.len()) as f64 * cap * 2.2 + 3.0 * MARGIN_MM;
+    let legend_h = (lines.len() + 1 + entries.len()) as f64 * cap * 2.2 + 3.0 * MARGIN_MM;
     let total_w = area.width() + legend_w;
     let total_h = area.height().max(legend_h);
     let mut ppm = input.px_per_mm;
@@ -501,12 +509,50 @@ pub fn draw_proof(input: &ProofInput<'_>) -> Proof {
             .collect();
         canvas.paint(shapes, TARGET);
     }
+    ProofBase {
+        canvas,
+        title: input.title.clone(),
+        area,
+        ppm,
+    }
+}
+
+/// The legend's lines above its entries: the title, what the picture shows and, with the
+/// number of findings, how many are circled.
+fn legend_lines(title: &str, findings: Option<usize>) -> Vec<String> {
+    let mut lines = vec![
+        title.to_string(),
+        "as the films will make it, seen from the top".to_string(),
+    ];
+    if let Some(n) = findings {
+        lines.push(match n {
+            0 => "no findings".to_string(),
+            n => format!("{n} finding(s), circled"),
+        });
+    }
+    lines
+}
+
+/// Draws the findings and the legend on a proof from [`draw_proof_base`].
+pub fn finish_proof(base: ProofBase, findings: &[Finding]) -> Proof {
+    let ProofBase {
+        mut canvas,
+        title,
+        area,
+        ppm,
+    } = base;
+    let map = canvas.map;
+    let (w, h) = (map.width, map.height);
+    let entries = legend_entries();
+    let cap = LEGEND_CAP_MM;
+    let lines = legend_lines(&title, Some(findings.len()));
+    let line = (1.5 / ppm).max(0.1);
 
     // Findings: a vermillion ring on a white halo, and the number on a white box.
     let mut markers = Vec::new();
     let (mut halos, mut rings, mut boxes, mut numbers) = (vec![], vec![], vec![], vec![]);
     let num_cap = 1.0f64.max(14.0 / ppm);
-    for f in input.findings {
+    for f in findings {
         // Small and alike: the circle marks a place, the table says how large the area is.
         let r = (f.extent_mm[0].max(f.extent_mm[1]) / 2.0 + 0.4).clamp(0.6, 1.2);
         let rw = (0.12f64).max(2.0 / ppm);
@@ -646,16 +692,17 @@ pub fn write_proof(path: &Path, proof: &Proof) -> Result<(), OutputError> {
 /// Draws and writes the proof of a board whose films were made by
 /// [`crate::films::make_films`]; records it in `report.proof`.
 #[allow(clippy::too_many_arguments)]
-pub fn write_board_proof(
-    path: &Path,
-    file_name: &str,
+/// The proof of a board made by [`crate::films::make_films`] up to the findings
+/// ([`draw_proof_base`]): the copper films, the outline layer, the drill files and the
+/// registration targets.
+pub fn board_proof_base(
     title: &str,
     films: &[crate::films::MadeFilm],
     board: &crate::load::Board,
     frame: &crate::film::compose::BoardFrame,
     target_size_mm: f64,
-    report: &mut CheckReport,
-) -> Result<(), OutputError> {
+    px_per_mm: f64,
+) -> ProofBase {
     use crate::layers::{LayerFunction, Side};
     let copper = |side: Side| {
         films
@@ -674,7 +721,7 @@ pub fn write_board_proof(
         _ => None,
     });
     let drills = crate::films::drill_files(board);
-    let input = ProofInput {
+    draw_proof_base(&ProofInput {
         title: title.to_string(),
         board: frame.board,
         top: copper(Side::Top),
@@ -683,12 +730,52 @@ pub fn write_board_proof(
         drills: &drills,
         targets: frame.targets,
         target_size_mm,
-        findings: &report.findings,
-        px_per_mm: report.limits.proof_px_per_mm,
-    };
-    let mut proof = draw_proof(&input);
+        findings: &[],
+        px_per_mm,
+    })
+}
+
+/// Finishes `base` with the report's findings, writes it to `path` and notes it in the
+/// report (as `file_name`).
+pub fn write_finished_proof(
+    path: &Path,
+    file_name: &str,
+    base: ProofBase,
+    report: &mut CheckReport,
+) -> Result<(), OutputError> {
+    let mut proof = finish_proof(base, &report.findings);
     proof.info.file = file_name.to_string();
     write_proof(path, &proof)?;
     report.proof = Some(proof.info);
     Ok(())
+}
+
+/// Checks the films of a board made by [`crate::films::make_films`] and writes the proof to
+/// `path`: the proof's picture is drawn while the check runs, the findings after it.
+#[allow(clippy::too_many_arguments)]
+pub fn check_with_proof(
+    path: &Path,
+    file_name: &str,
+    title: &str,
+    films: &[crate::films::MadeFilm],
+    board: &crate::load::Board,
+    frame: &crate::film::compose::BoardFrame,
+    target_size_mm: f64,
+    limits: &crate::check::ProcessLimits,
+) -> Result<CheckReport, OutputError> {
+    let (mut report, base) = rayon::join(
+        || crate::check::check_films(films, board, &frame.board, limits),
+        || {
+            board_proof_base(
+                title,
+                films,
+                board,
+                frame,
+                target_size_mm,
+                limits.proof_px_per_mm,
+            )
+        },
+    );
+    write_finished_proof(path, file_name, base, &mut report)?;
+    Ok(report)
 }

@@ -59,10 +59,11 @@ pub fn run(a: CheckArgs) -> Result<ExitCode, String> {
     let (films, frame, _warnings) =
         crate::films::make_films(&board, &profile, job.as_ref(), &board_name, "")
             .map_err(|e| e.to_string())?;
-    let mut report = super::check_films(&films, &board, &frame.board, &profile.limits);
-    if !a.no_proof {
+    let report = if a.no_proof {
+        super::check_films(&films, &board, &frame.board, &profile.limits)
+    } else {
         let name = a.proof.display().to_string();
-        crate::proof::write_board_proof(
+        crate::proof::check_with_proof(
             &a.proof,
             &name,
             &board_name,
@@ -70,10 +71,10 @@ pub fn run(a: CheckArgs) -> Result<ExitCode, String> {
             &board,
             &frame,
             profile.artwork.target_size_mm,
-            &mut report,
+            &profile.limits,
         )
-        .map_err(|e| e.to_string())?;
-    }
+        .map_err(|e| e.to_string())?
+    };
     if a.json {
         println!(
             "{}",

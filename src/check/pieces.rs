@@ -248,8 +248,13 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
     }
     let grid = Grid::new(&all, dark.len());
     let mut cells: Vec<Vec<u32>> = vec![Vec::new(); grid.nx * grid.ny];
+    // Each object's grown box and its first cell (the cells are monotonic in x and y, so the
+    // cell of two boxes' overlap corner is the larger of their first cells on each axis).
+    let grown: Vec<Bounds> = dark.iter().map(|g| g.bounds.grown(grow)).collect();
+    let mut first_cell: Vec<(u32, u32)> = Vec::with_capacity(dark.len());
     for (k, g) in dark.iter().enumerate() {
         let (x0, y0, x1, y1) = grid.cells_of(&g.bounds, grow);
+        first_cell.push((x0 as u32, y0 as u32));
         for cy in y0..=y1 {
             for cx in x0..=x1 {
                 cells[cy * grid.nx + cx].push(k as u32);
@@ -287,20 +292,19 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
     let mut parent: Vec<u32> = (0..dark.len() as u32).collect();
     let mut open: Vec<(u32, u32)> = Vec::new();
     for (ci, members) in cells.iter().enumerate() {
-        let (cx, cy) = (ci % grid.nx, ci / grid.nx);
+        let (cx, cy) = ((ci % grid.nx) as u32, (ci / grid.nx) as u32);
         for (n, &ka) in members.iter().enumerate() {
-            let a = &dark[ka as usize];
+            let (fa, ga) = (first_cell[ka as usize], &grown[ka as usize]);
             for &kb in &members[n + 1..] {
-                let b = &dark[kb as usize];
-                let (ga, gb) = (a.bounds.grown(grow), b.bounds.grown(grow));
-                if !boxes_meet(&ga, &gb) {
-                    continue;
-                }
                 // Only in the cell of the overlap's lower corner.
-                let corner = Point::new(ga.min_x.max(gb.min_x), ga.min_y.max(gb.min_y));
-                if grid.cell_of(corner) != (cx, cy) {
+                let fb = first_cell[kb as usize];
+                if fa.0.max(fb.0) != cx || fa.1.max(fb.1) != cy {
                     continue;
                 }
+                if !boxes_meet(ga, &grown[kb as usize]) {
+                    continue;
+                }
+                let (a, b) = (&dark[ka as usize], &dark[kb as usize]);
                 // Already one piece: nothing to learn from this pair.
                 if find(&mut parent, ka) == find(&mut parent, kb) {
                     continue;
@@ -760,8 +764,8 @@ impl Grid {
     }
 
     fn cell_of(&self, p: Point) -> (usize, usize) {
-        let c =
-            |v: f64, o: f64, n: usize| (((v - o) / self.cell).floor().max(0.0) as usize).min(n - 1);
+        // Truncation is the floor for the non-negative values kept (and no libm call).
+        let c = |v: f64, o: f64, n: usize| (((v - o) / self.cell).max(0.0) as usize).min(n - 1);
         (c(p.x, self.x0, self.nx), c(p.y, self.y0, self.ny))
     }
 

@@ -83,9 +83,7 @@ pub fn run(
     std::thread::scope(|scope| {
         let checking = scope.spawn(|| {
             background::in_background(|| {
-                let mut check =
-                    crate::check::check_films(&films, board, &frame.board, &profile.limits);
-                crate::proof::write_board_proof(
+                crate::proof::check_with_proof(
                     &staged.path("proof.png"),
                     "proof.png",
                     &opts.board_name,
@@ -93,9 +91,8 @@ pub fn run(
                     board,
                     &frame,
                     profile.artwork.target_size_mm,
-                    &mut check,
+                    &profile.limits,
                 )
-                .map(|()| check)
                 .map_err(|e| FilmsError::Output(e.to_string()))
             })
         });

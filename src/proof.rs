@@ -230,6 +230,12 @@ impl Canvas {
         let (w, index) = (m.width, named(colour));
         for y in 0..mask.height() {
             for (wi, &word) in mask.row(y).iter().enumerate() {
+                if word == u64::MAX {
+                    // A whole word inside the window (the mask's padding bits are clear).
+                    let at = (y0 + y) * w + x0 + wi * 64;
+                    self.pixels[at..at + 64].fill(index);
+                    continue;
+                }
                 let mut bits = word;
                 while bits != 0 {
                     let x = wi * 64 + bits.leading_zeros() as usize;
@@ -380,6 +386,18 @@ pub fn draw_proof_base(input: &ProofInput<'_>) -> ProofBase {
     };
     let top = input.top.map(|f| (f, samples(f)));
     let bottom = input.bottom.map(|f| (f, samples(f)));
+    // The colour level of each count of samples on material (of n² per pixel): the fraction
+    // in quarters, rounded; top levels step by LEVELS.
+    let levels = |s: Option<&Samples>, step: usize| -> Vec<usize> {
+        (0..=16usize)
+            .map(|hits| {
+                let f = s.map_or(0.0, |s| hits as f64 / (s.n * s.n) as f64);
+                (f * 4.0 + 0.5) as usize * step
+            })
+            .collect()
+    };
+    let level_top = levels(top.as_ref().map(|t| &t.1), LEVELS);
+    let level_bottom = levels(bottom.as_ref().map(|b| &b.1), 1);
     let (ky0, ky1) = {
         let (_, a) = map.to_px(Point::new(0.0, keep.max_y));
         let (_, c) = map.to_px(Point::new(0.0, keep.min_y));
@@ -413,17 +431,12 @@ pub fn draw_proof_base(input: &ProofInput<'_>) -> ProofBase {
                 if let Some((f, s)) = &bottom {
                     s.add_row(f, y, (kx0, kx1), hb);
                 }
-                let fraction = |hits: u8, s: Option<&Samples>| {
-                    s.map_or(0.0, |s| hits as f64 / (s.n * s.n) as f64)
-                };
-                let (st, sb) = (top.as_ref().map(|t| &t.1), bottom.as_ref().map(|b| &b.1));
                 for x in kx0..kx1 {
                     if ht[x] == 0 && hb[x] == 0 {
                         continue;
                     }
-                    let level = |f: f64| (f * 4.0 + 0.5) as usize;
-                    let (ft, fb) = (fraction(ht[x], st), fraction(hb[x], sb));
-                    row[x] = (BLEND0 + level(ft) * LEVELS + level(fb)) as u8;
+                    row[x] =
+                        (BLEND0 + level_top[ht[x] as usize] + level_bottom[hb[x] as usize]) as u8;
                 }
             },
         );

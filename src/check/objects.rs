@@ -106,18 +106,47 @@ pub(super) fn ring_of(
             (x1 + 1, x1)
         };
         let (s0, s1) = if s0 <= s1 { (s0, s1) } else { (x1 + 1, x1) };
-        for x in (x0..=x1.min(s0 - 1)).chain((s1 + 1).max(x0)..=x1) {
-            let dx = (x as f64 + 0.5 - cx) * area.mm_x;
-            let d2 = dx * dx + dy * dy;
-            if d2 < open2 || d2 > reach2 {
-                continue;
+        // The candidate columns are x0..=x1 without s0..=s1. On either side of the centre the
+        // distance grows with |dx|, so scanning outward from the centre, the first clear
+        // pixel is the row's nearest gap on that side and the first copper pixel the
+        // nearest copper: the scan stops once both are known (or beyond `reach`).
+        let mid = (cx - 0.5).floor() as i64; // columns <= mid lie left of the centre
+        let (l1, r0) = if s0 <= s1 && s0 <= x1 {
+            (s0 - 1, s1 + 1)
+        } else {
+            (x1, x0)
+        };
+        let left = (x0..=l1.min(mid)).rev();
+        let right = r0.max(mid + 1)..=x1;
+        let mut scan = |cols: &mut dyn Iterator<Item = i64>| {
+            let (mut copper, mut gap) = (false, false);
+            for x in cols {
+                let dx = (x as f64 + 0.5 - cx) * area.mm_x;
+                let d2 = dx * dx + dy * dy;
+                if d2 > reach2 {
+                    break;
+                }
+                if d2 < open2 {
+                    continue;
+                }
+                if get(x, y) {
+                    if !copper {
+                        copper = true;
+                        copper_near |= d2 <= need2;
+                    }
+                } else if !gap {
+                    gap = true;
+                    if d2 < nearest_gap {
+                        nearest_gap = d2;
+                    }
+                }
+                if copper && gap {
+                    break;
+                }
             }
-            if get(x, y) {
-                copper_near |= d2 <= need2;
-            } else if d2 < nearest_gap {
-                nearest_gap = d2;
-            }
-        }
+        };
+        scan(&mut left.into_iter());
+        scan(&mut right.into_iter());
     }
     if !copper_near || !nearest_gap.is_finite() {
         return None;
@@ -184,4 +213,114 @@ pub(super) fn vanished(
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::raster::DeviceMap;
+
+    /// The ring by definition: every pixel centre between the hole's edge and `reach`, one
+    /// by one (the nearest clear one, and whether copper lies within the needed ring).
+    fn ring_by_every_pixel(
+        material: &Bitmap,
+        area: &Area,
+        hole: &HoleSite,
+        min_ring: f64,
+    ) -> Option<f64> {
+        let need = hole.open_r + min_ring;
+        let reach = need + area.pixel_mm();
+        let (cx, cy) = area.to_px(hole.at);
+        let get = |x: i64, y: i64| x >= 0 && y >= 0 && material.get(x as usize, y as usize);
+        let mid = 0.5 * (hole.mark_r + hole.open_r);
+        let mut copper_near = hole.open_r > hole.mark_r
+            && (0..8).any(|k| {
+                let a = k as f64 * std::f64::consts::FRAC_PI_4;
+                get(
+                    (cx + mid * a.cos() / area.mm_x).floor() as i64,
+                    (cy + mid * a.sin() / area.mm_y).floor() as i64,
+                )
+            });
+        let mut nearest = f64::INFINITY;
+        for y in -5..(material.height() as i64 + 5) {
+            for x in -5..(material.width() as i64 + 5) {
+                let dx = (x as f64 + 0.5 - cx) * area.mm_x;
+                let dy = (y as f64 + 0.5 - cy) * area.mm_y;
+                let d2 = dx * dx + dy * dy;
+                if d2 < hole.open_r * hole.open_r || d2 > reach * reach {
+                    continue;
+                }
+                if get(x, y) {
+                    copper_near |= d2 <= need * need;
+                } else {
+                    nearest = nearest.min(d2);
+                }
+            }
+        }
+        if !copper_near || !nearest.is_finite() {
+            return None;
+        }
+        let ring = (nearest.sqrt() - 0.5 * area.pixel_mm() - hole.open_r).max(0.0);
+        (ring < min_ring - 0.5 * area.pixel_mm()).then_some(ring)
+    }
+
+    #[test]
+    fn ring_scan_agrees_with_every_pixel() {
+        // Pads of random size around holes at random sub-pixel places, with random clear
+        // specks, at 600 and 1200 dpi and a non-square grid; marks larger and smaller than
+        // the drill.
+        let mut seed = 17u64;
+        let mut u = move || {
+            seed = seed
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (seed >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for (dpi_x, dpi_y) in [(600.0, 600.0), (1200.0, 1200.0), (1200.0, 1000.0)] {
+            // The film covers the board and its margin (7 × 6 mm).
+            let px = |mm: f64, dpi: f64| (mm * dpi / 25.4).ceil() as usize;
+            let map = DeviceMap::new(
+                Point::new(0.0, 0.0),
+                px(7.0, dpi_x),
+                px(6.0, dpi_y),
+                dpi_x,
+                dpi_y,
+            );
+            let board = Bounds {
+                min_x: 0.5,
+                min_y: 0.5,
+                max_x: 6.0,
+                max_y: 5.5,
+            };
+            let area = Area::of(&map, &board);
+            let (w, h) = area.size(&board);
+            for _ in 0..60 {
+                let at = Point::new(2.5 + u(), 2.5 + u());
+                let pad_r = 0.3 + 0.5 * u();
+                let hole_mm = 0.3 + 0.5 * u();
+                let mark_r = if u() < 0.5 { 0.2 * u() } else { hole_mm / 2.0 };
+                let hole = HoleSite {
+                    at,
+                    hole_mm,
+                    mark_r,
+                    open_r: mark_r.max(hole_mm / 2.0),
+                };
+                let mut material = Bitmap::new(w, h);
+                for y in 0..h {
+                    for x in 0..w {
+                        let p = area.to_mm(x as f64 + 0.5, y as f64 + 0.5);
+                        let inside = p.dist(at) <= pad_r && u() > 0.03;
+                        material.set(x, y, inside);
+                    }
+                }
+                for min_ring in [0.1, 0.15, 0.3] {
+                    assert_eq!(
+                        ring_of(&material, &area, &hole, min_ring),
+                        ring_by_every_pixel(&material, &area, &hole, min_ring),
+                        "{dpi_x}×{dpi_y} dpi, hole {hole:?}, pad {pad_r}, ring {min_ring}"
+                    );
+                }
+            }
+        }
+    }
 }

@@ -280,6 +280,11 @@ fn thin_parts(
         mm_y: area.mm_y,
     };
     let cap = MEASURE_FACTOR * min_mm;
+    // A measured width is at least two nearest-outside steps less a pixel along the way
+    // (`Probe::width_at_in`), so a dangling part with fewer pixels than this cannot run as
+    // long as the limit ([`is_stub`]) and needs no measuring.
+    let least_width = (2.0 * area.mm_x.min(area.mm_y) - area.mm_x.max(area.mm_y)).max(0.0);
+    let stub_pixels = min_mm * least_width / (area.mm_x * area.mm_y) * (1.0 - 1e-9);
     let comps = components(&residue, MAX_RESIDUE_PIXELS);
     comps
         .par_iter()
@@ -289,7 +294,7 @@ fn thin_parts(
                 Keep::Separates(_) => (pieces >= 2, false),
                 Keep::Bridges => (pieces != 1, pieces == 1),
             };
-            if !wanted && !dangling {
+            if !wanted && (!dangling || (c.pixels.len() as f64) < stub_pixels) {
                 return None;
             }
             let stride = (c.pixels.len() / SAMPLES_PER_COMPONENT).max(1);

@@ -348,6 +348,25 @@ pub(crate) struct Touches {
 }
 
 impl Touches {
+    /// Clears from `residue` (the bitmap these touches were taken of) every component for
+    /// which `keep(labels touched (up to 2), pixels)` is false: the rest is then walked
+    /// pixel by pixel.
+    pub fn retain(&self, residue: &mut Bitmap, keep: impl Fn(usize, usize) -> bool) {
+        let mut size = vec![0usize; self.count.len()];
+        for row in &self.parts.rows {
+            for &(a, b, l) in row {
+                size[l as usize] += (b - a) as usize;
+            }
+        }
+        for (y, row) in self.parts.rows.iter().enumerate() {
+            for &(a, b, l) in row {
+                if !keep(self.count[l as usize] as usize, size[l as usize]) {
+                    crate::raster::fill_row_span(residue.row_mut(y), a as usize, b as usize, false);
+                }
+            }
+        }
+    }
+
     /// How many different labels (up to 2) the edge neighbours of `comp`'s pixels carry.
     pub fn of(&self, comp: &Component) -> usize {
         comp.pixels

@@ -265,7 +265,7 @@ fn thin_parts(
         y_um: area.mm_y * 1000.0,
     };
     let opened = morphology::opening(space, r_um, pitch);
-    let residue = and_not(space, &opened);
+    let mut residue = and_not(space, &opened);
     // Which pieces each residue part touches: of the opened copper (bridges), or of the
     // other material (gaps and webs).
     let touches = match keep {
@@ -273,6 +273,9 @@ fn thin_parts(
         Keep::Separates(l) => l.touches(&residue),
     };
     drop(opened);
+    // What can matter (the tests below, before any pixel is walked): parts between two
+    // pieces; for bridges also islands, and parts touching one piece large enough to be a
+    // stub.
     let probe = Probe {
         bm: space,
         outside,
@@ -285,18 +288,17 @@ fn thin_parts(
     // long as the limit ([`is_stub`]) and needs no measuring.
     let least_width = (2.0 * area.mm_x.min(area.mm_y) - area.mm_x.max(area.mm_y)).max(0.0);
     let stub_pixels = min_mm * least_width / (area.mm_x * area.mm_y) * (1.0 - 1e-9);
+    touches.retain(&mut residue, |pieces, pixels| match keep {
+        Keep::Separates(_) => pieces >= 2,
+        Keep::Bridges => pieces != 1 || pixels as f64 >= stub_pixels,
+    });
     let comps = components(&residue, MAX_RESIDUE_PIXELS);
     comps
         .par_iter()
         .map_init(measure::Window::scratch, |window, c| {
-            let pieces = touches.of(c);
-            let (wanted, dangling) = match keep {
-                Keep::Separates(_) => (pieces >= 2, false),
-                Keep::Bridges => (pieces != 1, pieces == 1),
-            };
-            if !wanted && (!dangling || (c.pixels.len() as f64) < stub_pixels) {
-                return None;
-            }
+            // Only parts that matter are left (above); one touching a single piece of
+            // copper must still prove to be a stub.
+            let dangling = matches!(keep, Keep::Bridges) && touches.of(c) == 1;
             let stride = (c.pixels.len() / SAMPLES_PER_COMPONENT).max(1);
             let sampled = c.pixels.len().div_ceil(stride);
             let mut widths: Vec<f64> = c

@@ -18,6 +18,7 @@ mod shapes;
 pub(crate) mod shift;
 mod spans;
 
+pub(crate) use bitmap::fill_row_span;
 pub use bitmap::Bitmap;
 pub use design::{DesignSpans, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};

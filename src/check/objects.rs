@@ -86,8 +86,8 @@ pub(super) fn ring_of(
         // Columns whose centres lie within `reach` on this row.
         let half = rest2.sqrt() / area.mm_x;
         let (x0, x1) = (
-            (cx - half - 0.5).floor() as i64,
-            (cx + half - 0.5).ceil() as i64,
+            floor_i(cx - half - 0.5),
+            ceil_i(cx + half - 0.5),
         );
         // Columns a whole pixel inside the hole's edge cannot count (d² < open²): the
         // row's pixels run in two pieces either side of them.
@@ -99,8 +99,8 @@ pub(super) fn ring_of(
         };
         let (s0, s1) = if ih >= 0.0 {
             (
-                (cx - 0.5 - ih).ceil() as i64,
-                (cx - 0.5 + ih).floor() as i64,
+                ceil_i(cx - 0.5 - ih),
+                floor_i(cx - 0.5 + ih),
             )
         } else {
             (x1 + 1, x1)
@@ -110,7 +110,7 @@ pub(super) fn ring_of(
         // distance grows with |dx|, so scanning outward from the centre, the first clear
         // pixel is the row's nearest gap on that side and the first copper pixel the
         // nearest copper: the scan stops once both are known (or beyond `reach`).
-        let mid = (cx - 0.5).floor() as i64; // columns <= mid lie left of the centre
+        let mid = floor_i(cx - 0.5); // columns <= mid lie left of the centre
         let (l1, r0) = if s0 <= s1 && s0 <= x1 {
             (s0 - 1, s1 + 1)
         } else {
@@ -155,6 +155,19 @@ pub(super) fn ring_of(
     // The nearest clear pixel's centre lies half a pixel beyond the copper's edge.
     let ring = (nearest_gap - 0.5 * area.pixel_mm() - hole.open_r).max(0.0);
     (ring < min_ring - 0.5 * area.pixel_mm()).then_some(ring)
+}
+
+/// ⌊v⌋ without a library call (pixel coordinates, far below 2⁵³; the ring loop takes
+/// several per row of every hole).
+fn floor_i(v: f64) -> i64 {
+    let t = v as i64;
+    t - i64::from(t as f64 > v)
+}
+
+/// ⌈v⌉, as [`floor_i`].
+fn ceil_i(v: f64) -> i64 {
+    let t = v as i64;
+    t + i64::from((t as f64) < v)
 }
 
 /// Objects of the layer image narrower than `limit` that leave nothing on the film: copper

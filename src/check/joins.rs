@@ -30,8 +30,8 @@
 use super::area::Area;
 use super::pieces::sure_pieces;
 use super::{finding, FilmInput, Finding, FindingKind};
-use crate::image::{Bounds, Point, Polarity};
-use crate::raster::{design_rows, Bitmap, DesignSpans, DeviceMap};
+use crate::image::{Bounds, LayerImage, Point, Polarity};
+use crate::raster::{design_window, Bitmap, DeviceMap};
 use crate::vector::flatten::Flattener;
 use crate::vector::Pt;
 use rayon::prelude::*;
@@ -77,31 +77,21 @@ pub(super) fn closed_gaps(
     if sure.open.is_empty() {
         return Vec::new();
     }
-    // Open pairs that share a pixel after all: paint the rows where they meet. Every pair
-    // painted there shares a pixel, so the sets stay within the design's pieces.
-    let r = (reach_mm / area.mm_x.min(area.mm_y)).ceil() as i64;
-    let rows_of = |ga: &Bounds, gb: &Bounds, grow: usize| {
-        let (y0, y1) = (ga.min_y.max(gb.min_y), ga.max_y.min(gb.max_y));
-        let (_, p0) = input.map.to_px(Point::new(0.0, y0));
-        let (_, p1) = input.map.to_px(Point::new(0.0, y1));
-        let lo = p0.min(p1).floor().max(0.0) as usize;
-        let hi = p0.max(p1).ceil().max(0.0) as usize + 1;
-        (lo.saturating_sub(grow), hi + grow)
-    };
-    let rows: Vec<(usize, usize)> = sure
+    // Open pairs that share a pixel after all: paint the window where their boxes meet,
+    // with the objects reaching it. Every pair painted there shares a pixel, so the sets
+    // stay within the design's pieces.
+    let bounds: Vec<Bounds> = image.objects.iter().map(|o| o.shape.bounds()).collect();
+    let pairs: Vec<(u32, u32)> = sure
         .open
-        .iter()
-        .map(|(_, _, ga, gb)| rows_of(ga, gb, 1))
+        .par_iter()
+        .flat_map_iter(|(_, _, ga, gb)| {
+            let ((y0, y1), (x0, x1)) = window_px(input.map, &meet(ga, gb), 1);
+            let near = near_objects(&bounds, input.map, (y0, y1), (x0, x1));
+            let spans = design_window(&image.objects, &near, input.map, (y0, y1), (x0, x1));
+            spans.overlaps_on_rows(&[(y0, y1)])
+        })
         .collect();
-    // The layer's spans on those rows and on the rows around them that the contacts look
-    // at, painted for these rows only.
-    let around: Vec<(usize, usize)> = sure
-        .open
-        .iter()
-        .map(|(_, _, ga, gb)| rows_of(ga, gb, r as usize + 2))
-        .collect();
-    let spans = &design_rows(&image.objects, input.map, &around);
-    for (a, b) in spans.overlaps_on_rows(&rows) {
+    for (a, b) in pairs {
         sure.union(a, b);
     }
     sure.settle();
@@ -114,8 +104,9 @@ pub(super) fn closed_gaps(
     let n = image.objects.len() as u32;
     let piece: Vec<u32> = (0..n).map(|i| sure.find(i)).collect();
 
-    // 2.–3. The nearest pixels of every two pieces left open, within reach: the runs of the
-    // rows around each open pair, painted with their objects.
+    // 2.–3. The nearest pixels of every two pieces left open, within reach: the runs of a
+    // window around each open pair, painted with their objects.
+    let r = (reach_mm / area.mm_x.min(area.mm_y)).ceil() as i64;
     let reach2 = reach_mm * reach_mm;
     let crop = (area.x0 as i64, area.y0 as i64, w as i64, h as i64);
     let found: Vec<((u32, u32), Contact)> = sure
@@ -123,13 +114,8 @@ pub(super) fn closed_gaps(
         .par_iter()
         .filter_map(|(a, b, ga, gb)| {
             let (pa, pb) = (piece[*a as usize], piece[*b as usize]);
-            let meet = Bounds {
-                min_x: ga.min_x.max(gb.min_x),
-                min_y: ga.min_y.max(gb.min_y),
-                max_x: ga.max_x.min(gb.max_x),
-                max_y: ga.max_y.min(gb.max_y),
-            };
-            nearest_pixels(spans, input.map, &meet, r, crop, &piece, (pa, pb), area)
+            let window = (input.map, &meet(ga, gb), r, crop);
+            nearest_pixels(image, &bounds, window, &piece, (pa, pb), area)
                 .filter(|c| c.0 <= reach2)
                 .map(|c| ((pa.min(pb), pa.max(pb)), c))
         })
@@ -162,7 +148,6 @@ pub(super) fn closed_gaps(
             }
         }
     }
-    let bounds: Vec<Bounds> = image.objects.iter().map(|o| o.shape.bounds()).collect();
     let found: Vec<Finding> = contacts
         .par_iter()
         .filter_map(|&((pa, pb), (d2, p1, p2))| {
@@ -223,17 +208,59 @@ pub(super) fn closed_gaps(
     found
 }
 
+/// The objects (by index, in drawing order) whose boxes (`bounds`) come within a pixel of
+/// the film window (rows, columns).
+fn near_objects(
+    bounds: &[Bounds],
+    map: &DeviceMap,
+    rows: (usize, usize),
+    cols: (usize, usize),
+) -> Vec<u32> {
+    let a = map.to_mm(cols.0 as f64 - 1.0, rows.0 as f64 - 1.0);
+    let b = map.to_mm(cols.1 as f64 + 1.0, rows.1 as f64 + 1.0);
+    let window = Bounds {
+        min_x: a.x.min(b.x),
+        min_y: a.y.min(b.y),
+        max_x: a.x.max(b.x),
+        max_y: a.y.max(b.y),
+    };
+    (0..bounds.len() as u32)
+        .filter(|&i| overlaps(&bounds[i as usize], &window))
+        .collect()
+}
+
+/// Where two boxes overlap.
+fn meet(a: &Bounds, b: &Bounds) -> Bounds {
+    Bounds {
+        min_x: a.min_x.max(b.min_x),
+        min_y: a.min_y.max(b.min_y),
+        max_x: a.max_x.min(b.max_x),
+        max_y: a.max_y.min(b.max_y),
+    }
+}
+
+/// The film pixels (rows, columns; half-open, within the film) of the box `b`, `grow` more
+/// each way.
+fn window_px(map: &DeviceMap, b: &Bounds, grow: i64) -> ((usize, usize), (usize, usize)) {
+    let (ax, ay) = map.to_px(Point::new(b.min_x, b.min_y));
+    let (bx, by) = map.to_px(Point::new(b.max_x, b.max_y));
+    let clamp = |v: i64, hi: usize| v.clamp(0, hi as i64) as usize;
+    let x0 = clamp(ax.min(bx).floor() as i64 - grow, map.width);
+    let x1 = clamp(ax.max(bx).ceil() as i64 + grow + 1, map.width);
+    let y0 = clamp(ay.min(by).floor() as i64 - grow, map.height);
+    let y1 = clamp(ay.max(by).ceil() as i64 + grow + 1, map.height);
+    ((y0, y1), (x0, x1))
+}
+
 /// The nearest pixels of pieces `pa` and `pb` (`piece` maps objects to pieces) around `meet`
 /// (board mm, the two objects' grown boxes' overlap), `r` pixels beyond it, within the
 /// checked area `crop` (film pixels: x0, y0, width, height): the squared distance in mm and
-/// the two pixels in crop coordinates, the lower-numbered piece's first.
-#[allow(clippy::too_many_arguments)]
+/// the two pixels in crop coordinates, the lower-numbered piece's first. `bounds` are the
+/// objects' boxes.
 fn nearest_pixels(
-    spans: &DesignSpans,
-    map: &DeviceMap,
-    meet: &Bounds,
-    r: i64,
-    crop: (i64, i64, i64, i64),
+    image: &LayerImage,
+    bounds: &[Bounds],
+    (map, meet, r, crop): (&DeviceMap, &Bounds, i64, (i64, i64, i64, i64)),
     piece: &[u32],
     (pa, pb): (u32, u32),
     area: &Area,
@@ -247,6 +274,9 @@ fn nearest_pixels(
     if x0 >= x1 || y0 >= y1 {
         return None;
     }
+    let (rows_px, cols_px) = ((y0 as usize, y1 as usize), (x0 as usize, x1 as usize));
+    let near = near_objects(bounds, map, rows_px, cols_px);
+    let spans = design_window(&image.objects, &near, map, rows_px, cols_px);
     let rows = spans.window_runs(
         x0 as usize,
         y0 as usize,

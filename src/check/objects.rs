@@ -85,10 +85,7 @@ pub(super) fn ring_of(
         }
         // Columns whose centres lie within `reach` on this row.
         let half = rest2.sqrt() / area.mm_x;
-        let (x0, x1) = (
-            floor_i(cx - half - 0.5),
-            ceil_i(cx + half - 0.5),
-        );
+        let (x0, x1) = (floor_i(cx - half - 0.5), ceil_i(cx + half - 0.5));
         // Columns a whole pixel inside the hole's edge cannot count (d² < open²): the
         // row's pixels run in two pieces either side of them.
         let inner2 = open2 - dy * dy;
@@ -98,10 +95,7 @@ pub(super) fn ring_of(
             -1.0
         };
         let (s0, s1) = if ih >= 0.0 {
-            (
-                ceil_i(cx - 0.5 - ih),
-                floor_i(cx - 0.5 + ih),
-            )
+            (ceil_i(cx - 0.5 - ih), floor_i(cx - 0.5 + ih))
         } else {
             (x1 + 1, x1)
         };

@@ -22,4 +22,4 @@ pub(crate) use bitmap::fill_row_span;
 pub use bitmap::Bitmap;
 pub use design::{DesignSpans, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
-pub use render::{design_rows, render, render_with, RenderOptions};
+pub use render::{design_rows, design_window, render, render_with, RenderOptions};

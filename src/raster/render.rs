@@ -116,6 +116,29 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
 /// (half-open ranges of film rows, in any order); every other row is empty. Only the objects
 /// reaching those rows are prepared: a few rows of a large layer cost little.
 pub fn design_rows(objects: &[Object], map: &DeviceMap, ranges: &[(usize, usize)]) -> DesignSpans {
+    design_in(objects, None, map, ranges, None)
+}
+
+/// [`design_rows`] for one window of the film: rows `rows.0..rows.1`, spans cut to columns
+/// `cols.0..cols.1`. `candidates` (indices into `objects`, in drawing order) must hold every
+/// object reaching the window; only those that do are prepared and painted.
+pub fn design_window(
+    objects: &[Object],
+    candidates: &[u32],
+    map: &DeviceMap,
+    rows: (usize, usize),
+    cols: (usize, usize),
+) -> DesignSpans {
+    design_in(objects, Some(candidates), map, &[rows], Some(cols))
+}
+
+fn design_in(
+    objects: &[Object],
+    candidates: Option<&[u32]>,
+    map: &DeviceMap,
+    ranges: &[(usize, usize)],
+    cols: Option<(usize, usize)>,
+) -> DesignSpans {
     let mut merged: Vec<(usize, usize)> = ranges
         .iter()
         .map(|&(a, b)| (a, b.min(map.height)))
@@ -134,16 +157,36 @@ pub fn design_rows(objects: &[Object], map: &DeviceMap, ranges: &[(usize, usize)
         let k = ranges.partition_point(|r| r.1 <= rows.0);
         ranges.get(k).is_some_and(|r| r.0 < rows.1)
     };
-    let prepared: Vec<Prepared> = objects
+    let all: Vec<u32>;
+    let candidates = match candidates {
+        Some(c) => c,
+        None => {
+            all = (0..objects.len() as u32).collect();
+            &all
+        }
+    };
+    let prepared: Vec<Prepared> = candidates
         .par_iter()
-        .enumerate()
-        .filter_map(|(i, o)| {
+        .filter_map(|&i| {
+            let o = &objects[i as usize];
             let b = o.shape.bounds();
             let rows = map.rows_touching(b.min_y - 1e-9, b.max_y + 1e-9)?;
             if !reaches(rows) {
                 return None;
             }
-            prepare_object(o, map, i as u32)
+            if let Some((x0, x1)) = cols {
+                // The object's columns, a column more each way (mirrored like its spans).
+                let (c0, c1) = map.columns(b.min_x - 1e-9, b.max_x + 1e-9);
+                let (c0, c1) = if map.mirror {
+                    (map.width.saturating_sub(c1), map.width.saturating_sub(c0))
+                } else {
+                    (c0, c1)
+                };
+                if c1 + 1 < x0 || c0 > x1 + 1 {
+                    return None;
+                }
+            }
+            prepare_object(o, map, i)
         })
         .collect();
     let rows_of: Vec<Vec<PaintOp>> = ranges
@@ -163,11 +206,17 @@ pub fn design_rows(objects: &[Object], map: &DeviceMap, ranges: &[(usize, usize)
                     for p in list.iter().filter(|p| p.rows.0 <= row && row < p.rows.1) {
                         shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
                         for &(x0, x1) in spans.iter() {
-                            let (a, b) = if map.mirror {
+                            let (mut a, mut b) = if map.mirror {
                                 (map.width - x1, map.width - x0)
                             } else {
                                 (x0, x1)
                             };
+                            if let Some((c0, c1)) = cols {
+                                (a, b) = (a.max(c0), b.min(c1));
+                                if a >= b {
+                                    continue;
+                                }
+                            }
                             ops.push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
                         }
                     }

@@ -354,6 +354,24 @@ mod tests {
                 let want: &[_] = if asked { spans.row(j) } else { &[] };
                 assert_eq!(some.row(j), want, "row {j}");
             }
+            // A window: its rows, each span cut to its columns, nothing elsewhere.
+            let every: Vec<u32> = (0..objects.len() as u32).collect();
+            let win = design_window(&objects, &every, &map, (5, 20), (10, 30));
+            for j in 0..map.height {
+                let want: Vec<PaintOp> = if (5..20).contains(&j) {
+                    spans
+                        .row(j)
+                        .iter()
+                        .filter(|op| op.x1 > 10 && op.x0 < 30)
+                        .map(|op| {
+                            PaintOp::new(op.x0.max(10), op.x1.min(30), op.object(), op.dark())
+                        })
+                        .collect()
+                } else {
+                    Vec::new()
+                };
+                assert_eq!(win.row(j), &want[..], "window row {j}");
+            }
             let design = spans.window_runs(0, 0, map.width, map.height);
             assert_eq!(film, render_with(&objects, &map, &RenderOptions::default()));
             assert_eq!(design.len(), map.height);

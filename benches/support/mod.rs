@@ -19,6 +19,32 @@ pub fn best_s<T>(runs: usize, mut f: impl FnMut() -> T) -> (f64, f64, T) {
     (best.0, best.1, last.expect("at least one run"))
 }
 
+/// [`best_s`] of two jobs run in turn, `rounds` times each (f, g, f, g, …): both see the
+/// machine as it is during the same seconds, which a shared machine's changing speed
+/// would otherwise tilt.
+#[allow(dead_code)] // not every benchmark compares two jobs
+pub fn best_in_turn<T, U>(
+    rounds: usize,
+    mut f: impl FnMut() -> T,
+    mut g: impl FnMut() -> U,
+) -> ((f64, f64, T), (f64, f64, U)) {
+    let (mut a, mut b) = (None, None);
+    for _ in 0..rounds {
+        let x = best_s(1, &mut f);
+        if a.as_ref().is_none_or(|p: &(f64, f64, T)| x.0 < p.0) {
+            a = Some(x);
+        }
+        let y = best_s(1, &mut g);
+        if b.as_ref().is_none_or(|p: &(f64, f64, U)| y.0 < p.0) {
+            b = Some(y);
+        }
+    }
+    (
+        a.expect("at least one round"),
+        b.expect("at least one round"),
+    )
+}
+
 /// User + system CPU time of this process, all threads, seconds (proc(5): fields 14 and 15
 /// of /proc/self/stat, in clock ticks of 1/100 s on Linux).
 pub fn cpu_s() -> f64 {

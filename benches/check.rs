@@ -9,14 +9,12 @@
 #[path = "support/mod.rs"]
 mod support;
 
-/// The allocator of the `umbra` binary (src/main.rs), so that the figures are the command's.
-#[global_allocator]
-static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
-
 use support::{best_in_turn, best_s, load_average};
 use umbra::process::Profile;
 
 fn main() {
+    // As the `umbra` command does (src/main.rs).
+    umbra::memory::keep_freed_memory();
     let dir = tempfile::tempdir().unwrap();
     let src = dir.path().join("bench");
     std::fs::create_dir(&src).unwrap();

@@ -19,10 +19,6 @@
 #[path = "support/mod.rs"]
 mod support;
 
-/// The allocator of the `umbra` binary (src/main.rs), so that the figures are the command's.
-#[global_allocator]
-static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
-
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 use support::{best_s, cpu_s, load_average};
@@ -111,6 +107,8 @@ fn peak_child(dir: &Path) {
 }
 
 fn main() {
+    // As the `umbra` command does (src/main.rs).
+    umbra::memory::keep_freed_memory();
     let dir = tempfile::tempdir().expect("temp folder");
     if std::env::var_os("UMBRA_BENCH_PEAK").is_some() {
         peak_child(dir.path());

@@ -17,6 +17,7 @@ pub mod job;
 pub mod layers;
 pub mod limits;
 pub mod load;
+pub mod memory;
 pub mod output;
 pub mod process;
 pub mod proof;

@@ -6,12 +6,6 @@ use std::process::ExitCode;
 use umbra::load::{self, Content};
 use umbra::process::Profile;
 
-/// A general-purpose allocator that keeps freed memory for reuse: the films job and the check
-/// allocate and drop whole-film bitmaps (megabytes each) on several threads, which the
-/// system allocator would hand back to the kernel and fault in again each time.
-#[global_allocator]
-static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
-
 #[derive(Parser, Debug)]
 #[command(
     name = "umbra",
@@ -159,6 +153,7 @@ struct RenderArgs {
 }
 
 fn main() -> ExitCode {
+    umbra::memory::keep_freed_memory();
     let cli = Cli::parse();
     match run(cli) {
         Ok(code) => code,

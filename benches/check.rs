@@ -86,7 +86,7 @@ fn main() {
     });
     let proof = dir.path().join("proof.png");
     // The proof's picture (drawn beside the check in the job) and its findings (after it).
-    let (t_base, c_base, _) = best_s(3, || {
+    let base = || {
         umbra::proof::board_proof_base(
             "bench",
             &films,
@@ -95,17 +95,10 @@ fn main() {
             profile.artwork.target_size_mm,
             profile.limits.proof_px_per_mm,
         )
-    });
+    };
+    let (t_base, c_base, _) = best_s(3, base);
     let (t_finish, c_finish, _) = best_s(3, || {
-        let base = umbra::proof::board_proof_base(
-            "bench",
-            &films,
-            &board,
-            &frame,
-            profile.artwork.target_size_mm,
-            profile.limits.proof_px_per_mm,
-        );
-        umbra::proof::write_finished_proof(&proof, "proof.png", base, &mut report).unwrap()
+        umbra::proof::write_finished_proof(&proof, "proof.png", base(), &mut report).unwrap()
     });
     let ms = |wall: f64, cpu: f64| format!("{:7.1} ms [CPU {:6.1} ms]", wall * 1e3, cpu * 1e3);
     println!("load average {}", load_average());

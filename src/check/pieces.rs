@@ -1,6 +1,6 @@
 //! Whether two separate pieces of a layer's copper come close enough anywhere for the film to
-//! join them: a test on the drawn geometry that spares the closed-gap search its pixel work
-//! on layers where no gap can close.
+//! join them: a test on the drawn geometry that spares the closed-gap search nearly all its
+//! pixel work.
 //!
 //! The closed-gap search (`joins.rs`) compares the design's pieces — objects that share a
 //! pixel centre — with the film's copper. A join it reports always has two objects of
@@ -14,9 +14,9 @@
 //!   undo a shared pixel; one drawn in between may erase it).
 //! - Every other close pair is *open*.
 //!
-//! The pieces found from sure pairs are never coarser than the pixel pieces, so when every
-//! open pair lies in one such piece, no two pixel pieces come within reach and the search
-//! cannot find anything. Otherwise the search runs as before. Shapes are compared as discs
+//! The pieces found from sure pairs are never coarser than the pixel pieces, so two pixel
+//! pieces can only come within reach where an open pair lies: the search paints a small
+//! window around each open pair (and nothing when there is none). Shapes are compared as discs
 //! and capsules (round pads, straight and arced tracks: exact up to the arc's flattening) or
 //! as flattened outlines (polygons, macro pads); composites with a subtracted part are only
 //! ever open.

@@ -198,17 +198,57 @@ pub fn closing(bitmap: &Bitmap, radius_um: f64, pitch: Pitch) -> Bitmap {
     )
 }
 
-/// [`erode`] with explicit bands and threading.
+/// [`erode`] with explicit bands and threading: the complement dilated, each band reading
+/// its rows complemented and complementing its output (no complemented copy of the film).
 pub fn erode_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderOptions) -> Bitmap {
-    let mut inverse = bitmap.clone();
-    inverse.invert();
-    let mut out = dilate_with(&inverse, radius_um, pitch, opts);
-    out.invert();
-    out
+    grow(bitmap, radius_um, pitch, opts, Sense::Shrink)
 }
 
 /// [`dilate`] with explicit bands and threading.
 pub fn dilate_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderOptions) -> Bitmap {
+    grow(bitmap, radius_um, pitch, opts, Sense::Grow)
+}
+
+/// Dilation of the set pixels, or (`Shrink`) of the clear ones: erosion.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Sense {
+    Grow,
+    Shrink,
+}
+
+impl Sense {
+    /// A row's words as the dilation reads them (complemented when shrinking; the padding
+    /// bits past the width stay clear).
+    fn read(self, row: &[u64], mask: u64, out: &mut Vec<u64>) {
+        match self {
+            Sense::Grow => out.extend_from_slice(row),
+            Sense::Shrink => {
+                out.extend(row.iter().map(|w| !w));
+                if let Some(last) = out.last_mut() {
+                    *last &= mask;
+                }
+            }
+        }
+    }
+
+    /// An output row as the dilation left it, complemented back when shrinking.
+    fn write(self, row: &mut [u64], mask: u64) {
+        if self == Sense::Shrink {
+            row.iter_mut().for_each(|w| *w = !*w);
+        }
+        if let Some(last) = row.last_mut() {
+            *last &= mask;
+        }
+    }
+}
+
+fn grow(
+    bitmap: &Bitmap,
+    radius_um: f64,
+    pitch: Pitch,
+    opts: &RenderOptions,
+    sense: Sense,
+) -> Bitmap {
     let (w, h) = (bitmap.width(), bitmap.height());
     let disc = DiscKernel::new(radius_um, pitch, w, h);
     if disc.is_trivial() || w == 0 || h == 0 {
@@ -224,9 +264,9 @@ pub fn dilate_with(bitmap: &Bitmap, radius_um: f64, pitch: Pitch, opts: &RenderO
     let shared = groups.len() <= MAX_SHARED_GROUPS && ky <= band_rows;
     let band = |(b, chunk): (usize, &mut [u64])| {
         if shared {
-            dilate_band_shared(bitmap, &groups, b * band_rows, chunk, wpr);
+            dilate_band_shared(bitmap, &groups, b * band_rows, chunk, wpr, sense);
         } else {
-            dilate_band(bitmap, &groups, b * band_rows, chunk, wpr);
+            dilate_band(bitmap, &groups, b * band_rows, chunk, wpr, sense);
         }
     };
     let words = out.words_mut();
@@ -288,6 +328,7 @@ fn dilate_band_shared(
     first_row: usize,
     chunk: &mut [u64],
     wpr: usize,
+    sense: Sense,
 ) {
     let h = input.height();
     let mask = last_word_mask(input.width());
@@ -303,7 +344,13 @@ fn dilate_band_shared(
         let k = groups[gi].2;
         let mut rows = match wide.get(gi + 1) {
             Some(prev) if !prev.is_empty() => prev.clone(),
-            _ => input.words()[lo * wpr..hi * wpr].to_vec(),
+            _ => {
+                let mut rows = Vec::with_capacity((hi - lo) * wpr);
+                for y in lo..hi {
+                    sense.read(input.row(y), mask, &mut rows);
+                }
+                rows
+            }
         };
         for row in rows.chunks_mut(wpr) {
             widen_row(row, from, k, &mut scratch);
@@ -321,9 +368,7 @@ fn dilate_band_shared(
                 }
             }
         }
-        if let Some(last) = out_row.last_mut() {
-            *last &= mask;
-        }
+        sense.write(out_row, mask);
     }
 }
 
@@ -333,18 +378,22 @@ fn dilate_band(
     first_row: usize,
     chunk: &mut [u64],
     wpr: usize,
+    sense: Sense,
 ) {
     let h = input.height();
     let mask = last_word_mask(input.width());
     let mut acc = vec![0u64; wpr];
     let mut scratch = vec![0u64; wpr];
+    let mut row = Vec::with_capacity(wpr);
     for (r, out_row) in chunk.chunks_mut(wpr).enumerate() {
         let y = first_row + r;
         for &(j0, j1, k) in groups {
             acc.fill(0);
             let mut any = false;
             for yy in rows_at_offsets(y, j0, j1, h) {
-                for (a, s) in acc.iter_mut().zip(input.row(yy)) {
+                row.clear();
+                sense.read(input.row(yy), mask, &mut row);
+                for (a, s) in acc.iter_mut().zip(&row) {
                     *a |= *s;
                 }
                 any = true;
@@ -357,9 +406,7 @@ fn dilate_band(
                 *o |= *a;
             }
         }
-        if let Some(last) = out_row.last_mut() {
-            *last &= mask;
-        }
+        sense.write(out_row, mask);
     }
 }
 
@@ -419,18 +466,34 @@ mod tests {
                 let disc = DiscKernel::new(r, pitch, w, h);
                 let groups = kernel_groups(&disc);
                 let wpr = src.words_per_row();
+                // Shrinking reads the complement: the same as growing a complemented copy and
+                // complementing the result.
+                let mut inverse = src.clone();
+                inverse.invert();
                 for band_rows in [5usize, 16, 70] {
-                    let mut a = vec![0u64; wpr * h];
-                    let mut b = vec![0u64; wpr * h];
-                    for (i, (ca, cb)) in a
-                        .chunks_mut(wpr * band_rows)
-                        .zip(b.chunks_mut(wpr * band_rows))
-                        .enumerate()
-                    {
-                        dilate_band(&src, &groups, i * band_rows, ca, wpr);
-                        dilate_band_shared(&src, &groups, i * band_rows, cb, wpr);
+                    for (sense, input) in [(Sense::Grow, &src), (Sense::Shrink, &inverse)] {
+                        let mut a = vec![0u64; wpr * h];
+                        let mut b = vec![0u64; wpr * h];
+                        let mut c = vec![0u64; wpr * h];
+                        let chunks = a
+                            .chunks_mut(wpr * band_rows)
+                            .zip(b.chunks_mut(wpr * band_rows))
+                            .zip(c.chunks_mut(wpr * band_rows));
+                        for (i, ((ca, cb), cc)) in chunks.enumerate() {
+                            let y = i * band_rows;
+                            dilate_band(input, &groups, y, ca, wpr, Sense::Grow);
+                            dilate_band_shared(&src, &groups, y, cb, wpr, sense);
+                            dilate_band(&src, &groups, y, cc, wpr, sense);
+                        }
+                        let mut want = Bitmap::new(w, h);
+                        want.words_mut().copy_from_slice(&a);
+                        if sense == Sense::Shrink {
+                            want.invert();
+                        }
+                        let words = want.words();
+                        assert_eq!(words, &b[..], "{w}×{h} r {r} band {band_rows} {sense:?}");
+                        assert_eq!(words, &c[..], "{w}×{h} r {r} band {band_rows} {sense:?}");
                     }
-                    assert_eq!(a, b, "{w}×{h} r {r} band {band_rows}");
                 }
             }
         }

@@ -71,8 +71,9 @@ pub(super) fn closed_gaps(
     let px = area.pixel_mm();
     let reach_mm = 2.0 * growth_mm.max(0.0) + 2.0 * px;
 
-    // 0. What the drawn geometry settles: pieces that surely share pixels, and the close
-    // pairs of pieces left open (`pieces.rs`). No open pair: nothing can be joined.
+    // 1. Design pieces. What the drawn geometry settles: pieces that surely share pixels,
+    // and the close pairs of pieces left open (`pieces.rs`). No open pair: nothing can be
+    // joined.
     let mut sure = sure_pieces(&image.objects, reach_mm, input.map);
     if sure.open.is_empty() {
         return Vec::new();

@@ -10,8 +10,8 @@
 //!    shapes, so they overlap in the design. Objects that only come within a pixel of each
 //!    other stay separate, whichever way the grid falls — that is what finds sub-pixel gaps.
 //!    The drawn geometry settles most pairs (`pieces.rs`); the pairs it leaves open are
-//!    painted at the film's pixels on the rows where they meet: the renderer's spans of those
-//!    rows only (`crate::raster::design_rows`), painted in order into runs that remember
+//!    painted at the film's pixels in the window where their boxes meet: the renderer's spans
+//!    there only (`crate::raster::design_window`), painted in order into runs that remember
 //!    which object painted each pixel last.
 //! 2. **Contacts.** Two pieces can only be joined by the film where they come within the
 //!    growth's reach, which is where a pair left open lies: there, the nearest pair of their
@@ -28,7 +28,7 @@
 //! object): a clearance that closes is the "clearance lost" check's business.
 
 use super::area::Area;
-use super::pieces::sure_pieces;
+use super::pieces::{seg_distance2, sure_pieces};
 use super::{finding, FilmInput, Finding, FindingKind};
 use crate::image::{Bounds, LayerImage, Point, Polarity};
 use crate::raster::{design_window, Bitmap, DeviceMap};
@@ -133,10 +133,7 @@ pub(super) fn closed_gaps(
     contacts.truncate(MAX_PAIRS);
 
     // 4. The design gap at each contact where the film is copper all the way across.
-    let fl = Flattener::new(
-        &DeviceMap::new(Point::new(0.0, 0.0), 0, 0, 25.4, 25.4),
-        OUTLINE_TOLERANCE_MM,
-    );
+    let fl = Flattener::board_mm(OUTLINE_TOLERANCE_MM);
     let mut objects_of: HashMap<u32, Vec<usize>> = HashMap::new();
     for &((pa, pb), _) in &contacts {
         objects_of.entry(pa).or_default();
@@ -167,7 +164,7 @@ pub(super) fn closed_gaps(
             let outline = |want: u32| -> Vec<[Pt; 2]> {
                 let mut edges = Vec::new();
                 for &i in objects_of.get(&want).map_or(&[][..], |v| &v[..]) {
-                    if !overlaps(&bounds[i], &near) {
+                    if !bounds[i].intersects(&near) {
                         continue;
                     }
                     for ring in fl.rings(&image.objects[i].shape) {
@@ -226,7 +223,7 @@ fn near_objects(
         max_y: a.y.max(b.y),
     };
     (0..bounds.len() as u32)
-        .filter(|&i| overlaps(&bounds[i as usize], &window))
+        .filter(|&i| bounds[i as usize].intersects(&window))
         .collect()
 }
 
@@ -344,10 +341,6 @@ fn bridged(material: &Bitmap, p: (u32, u32), q: (u32, u32)) -> bool {
     })
 }
 
-fn overlaps(a: &Bounds, b: &Bounds) -> bool {
-    a.min_x <= b.max_x && b.min_x <= a.max_x && a.min_y <= b.max_y && b.min_y <= a.max_y
-}
-
 fn edge_near(e: &[Pt; 2], b: &Bounds) -> bool {
     let (x0, x1) = (e[0][0].min(e[1][0]), e[0][0].max(e[1][0]));
     let (y0, y1) = (e[0][1].min(e[1][1]), e[0][1].max(e[1][1]));
@@ -368,44 +361,11 @@ fn nearest(a: &[[Pt; 2]], b: &[[Pt; 2]]) -> Option<(f64, Pt, Pt)> {
     best
 }
 
-/// Closest point of segment `s` to point `p`.
-fn closest_on(s: &[Pt; 2], p: Pt) -> Pt {
-    let (dx, dy) = (s[1][0] - s[0][0], s[1][1] - s[0][1]);
-    let l2 = dx * dx + dy * dy;
-    let t = if l2 > 0.0 {
-        (((p[0] - s[0][0]) * dx + (p[1] - s[0][1]) * dy) / l2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    [s[0][0] + t * dx, s[0][1] + t * dy]
-}
-
-fn cross(o: Pt, a: Pt, b: Pt) -> f64 {
-    (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
-}
-
-/// Distance between two segments (elementary geometry: 0 when they cross, else the least of
-/// the four endpoint-to-segment distances) and the points realizing it.
+/// Distance between two edges and the points realizing it (0 where they cross).
 fn segment_distance(a: &[Pt; 2], b: &[Pt; 2]) -> (f64, Pt, Pt) {
-    let (d1, d2) = (cross(b[0], b[1], a[0]), cross(b[0], b[1], a[1]));
-    let (d3, d4) = (cross(a[0], a[1], b[0]), cross(a[0], a[1], b[1]));
-    if d1 * d2 < 0.0 && d3 * d4 < 0.0 {
-        return (0.0, a[0], a[0]);
-    }
-    let mut best = (f64::INFINITY, a[0], b[0]);
-    for (p, s, from_a) in [
-        (a[0], b, true),
-        (a[1], b, true),
-        (b[0], a, false),
-        (b[1], a, false),
-    ] {
-        let q = closest_on(s, p);
-        let d = (p[0] - q[0]).hypot(p[1] - q[1]);
-        if d < best.0 {
-            best = if from_a { (d, p, q) } else { (d, q, p) };
-        }
-    }
-    best
+    let pt = |p: Pt| Point::new(p[0], p[1]);
+    let (d2, p, q) = seg_distance2(pt(a[0]), pt(a[1]), pt(b[0]), pt(b[1]));
+    (d2.sqrt(), [p.x, p.y], [q.x, q.y])
 }
 
 #[cfg(test)]

@@ -216,13 +216,22 @@ pub(crate) fn row_runs(row: &[u64], out: &mut Vec<(u32, u32)>) {
     }
 }
 
-fn find(parent: &mut [u32], mut i: u32) -> u32 {
+/// The root of `i` in a union-find forest (with path halving).
+pub(super) fn find(parent: &mut [u32], mut i: u32) -> u32 {
     while parent[i as usize] != i {
         let g = parent[parent[i as usize] as usize];
         parent[i as usize] = g;
         i = g;
     }
     i
+}
+
+/// Joins the sets of `a` and `b`; the smaller root stays the root.
+pub(super) fn union(parent: &mut [u32], a: u32, b: u32) {
+    let (ra, rb) = (find(parent, a), find(parent, b));
+    if ra != rb {
+        parent[ra.max(rb) as usize] = ra.min(rb);
+    }
 }
 
 impl Labels {
@@ -248,10 +257,7 @@ impl Labels {
                     }
                     let mut k = j;
                     while k < prev.len() && prev[k].0 <= b {
-                        let (ra, rb) = (find(&mut parent, id), find(&mut parent, prev[k].2));
-                        if ra != rb {
-                            parent[ra.max(rb) as usize] = ra.min(rb);
-                        }
+                        union(&mut parent, id, prev[k].2);
                         k += 1;
                     }
                 }

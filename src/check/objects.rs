@@ -63,15 +63,7 @@ pub(super) fn ring_of(
     let reach = need + area.pixel_mm();
     let (cx, cy) = area.to_px(hole.at);
     let get = |x: i64, y: i64| x >= 0 && y >= 0 && material.get(x as usize, y as usize);
-    let mid = 0.5 * (hole.mark_r + hole.open_r);
-    let mut copper_near = hole.open_r > hole.mark_r
-        && (0..8).any(|k| {
-            let a = k as f64 * std::f64::consts::FRAC_PI_4;
-            get(
-                (cx + mid * a.cos() / area.mm_x).floor() as i64,
-                (cy + mid * a.sin() / area.mm_y).floor() as i64,
-            )
-        });
+    let mut copper_near = copper_inside_hole_edge(material, area, hole);
     // Squared distances in the loop; one square root at the end.
     let (need2, open2, reach2) = (need * need, hole.open_r * hole.open_r, reach * reach);
     let mut nearest_gap = f64::INFINITY;
@@ -149,6 +141,22 @@ pub(super) fn ring_of(
     // The nearest clear pixel's centre lies half a pixel beyond the copper's edge.
     let ring = (nearest_gap - 0.5 * area.pixel_mm() - hole.open_r).max(0.0);
     (ring < min_ring - 0.5 * area.pixel_mm()).then_some(ring)
+}
+
+/// Whether copper shows halfway between the mark's edge and the hole's (eight directions):
+/// a pad no larger than its drill, under a pilot mark.
+fn copper_inside_hole_edge(material: &Bitmap, area: &Area, hole: &HoleSite) -> bool {
+    let (cx, cy) = area.to_px(hole.at);
+    let mid = 0.5 * (hole.mark_r + hole.open_r);
+    hole.open_r > hole.mark_r
+        && (0..8).any(|k| {
+            let a = k as f64 * std::f64::consts::FRAC_PI_4;
+            let (x, y) = (
+                (cx + mid * a.cos() / area.mm_x).floor() as i64,
+                (cy + mid * a.sin() / area.mm_y).floor() as i64,
+            );
+            x >= 0 && y >= 0 && material.get(x as usize, y as usize)
+        })
 }
 
 /// ⌊v⌋ without a library call (pixel coordinates, far below 2⁵³; the ring loop takes
@@ -239,15 +247,8 @@ mod tests {
         let reach = need + area.pixel_mm();
         let (cx, cy) = area.to_px(hole.at);
         let get = |x: i64, y: i64| x >= 0 && y >= 0 && material.get(x as usize, y as usize);
-        let mid = 0.5 * (hole.mark_r + hole.open_r);
-        let mut copper_near = hole.open_r > hole.mark_r
-            && (0..8).any(|k| {
-                let a = k as f64 * std::f64::consts::FRAC_PI_4;
-                get(
-                    (cx + mid * a.cos() / area.mm_x).floor() as i64,
-                    (cy + mid * a.sin() / area.mm_y).floor() as i64,
-                )
-            });
+        // The eight samples inside the hole's edge are not what this test is about.
+        let mut copper_near = copper_inside_hole_edge(material, area, hole);
         let mut nearest = f64::INFINITY;
         for y in -5..(material.height() as i64 + 5) {
             for x in -5..(material.width() as i64 + 5) {

@@ -21,6 +21,7 @@
 //! as flattened outlines (polygons, macro pads); composites with a subtracted part are only
 //! ever open.
 
+use super::measure::{find, union};
 use crate::image::{arc_sweep, Bounds, Object, Point, Polarity, Shape};
 use crate::raster::DeviceMap;
 use crate::vector::flatten::{chords_for, Flattener};
@@ -101,17 +102,20 @@ impl Outline {
             .min(self.bands.len() - 1)
     }
 
-    /// Edges that may come within the rows `lo..=hi` (an edge may come more than once).
-    fn near(&self, lo: f64, hi: f64) -> impl Iterator<Item = (Point, Point)> + '_ {
-        let (a, b) = if hi < self.bounds.min_y || lo > self.bounds.max_y {
-            (1, 0)
+    /// The edges (by index of their first point) that may come within heights `lo..=hi`
+    /// (an edge may come more than once).
+    fn edges_near(&self, lo: f64, hi: f64) -> impl Iterator<Item = u32> + '_ {
+        let bands = if hi < self.bounds.min_y || lo > self.bounds.max_y {
+            &[][..]
         } else {
-            (self.band(lo), self.band(hi))
+            &self.bands[self.band(lo)..=self.band(hi)]
         };
-        self.bands[a.min(self.bands.len())..(b + 1).min(self.bands.len())]
-            .iter()
-            .flatten()
-            .map(|&i| self.edge(i))
+        bands.iter().flatten().copied()
+    }
+
+    /// [`Self::edges_near`] as segments.
+    fn near(&self, lo: f64, hi: f64) -> impl Iterator<Item = (Point, Point)> + '_ {
+        self.edges_near(lo, hi).map(|i| self.edge(i))
     }
 
     /// Winding number about `c` (crossings of the ray to +x): the edges of `c`'s band hold
@@ -207,7 +211,7 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
     let need = 0.5 * mm_x.hypot(mm_y) + render_tol + 1e-6;
     let threshold = reach_mm + 2.0 * render_tol + 1e-6;
 
-    let fl = Flattener::new(&DeviceMap::new(Point::new(0.0, 0.0), 0, 0, 25.4, 25.4), tol);
+    let fl = Flattener::board_mm(tol);
     let mut dark: Vec<Geom> = Vec::new();
     let mut clear: Vec<(u32, Bounds)> = Vec::new();
     for (i, o) in objects.iter().enumerate() {
@@ -283,7 +287,7 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
             (x0..=x1).any(|cx| {
                 clear_cells[cy * grid.nx + cx].iter().any(|&k| {
                     let (i, b) = &clear[k as usize];
-                    lo < *i && *i < hi && boxes_meet(b, &disc)
+                    lo < *i && *i < hi && b.intersects(&disc)
                 })
             })
         })
@@ -301,7 +305,7 @@ pub(super) fn sure_pieces(objects: &[Object], reach_mm: f64, map: &DeviceMap) ->
                 if fa.0.max(fb.0) != cx || fa.1.max(fb.1) != cy {
                     continue;
                 }
-                if !boxes_meet(ga, &grown[kb as usize]) {
+                if !ga.intersects(&grown[kb as usize]) {
                     continue;
                 }
                 let (a, b) = (&dark[ka as usize], &dark[kb as usize]);
@@ -537,15 +541,9 @@ fn inner_corner_points<'a>(
     let reach = 0.5 * b.width().min(b.height());
     let pts = &outline.pts;
     let n = pts.len();
-    let (a, z) = if hi < b.min_y || lo > b.max_y {
-        (1, 0)
-    } else {
-        (outline.band(lo), outline.band(hi))
-    };
-    outline.bands[a.min(outline.bands.len())..(z + 1).min(outline.bands.len())]
-        .iter()
-        .flatten()
-        .map(|&i| i as usize)
+    outline
+        .edges_near(lo, hi)
+        .map(|i| i as usize)
         .filter(move |&i| near(pts[i]))
         .flat_map(move |i| {
             let v = pts[i];
@@ -680,7 +678,7 @@ fn point_segment2(p: Point, a: Point, b: Point) -> f64 {
 
 /// Squared distance between segments a0–a1 and b0–b1 and the points realizing it
 /// (elementary geometry: 0 where they cross, else the least endpoint-to-segment distance).
-fn seg_distance2(a0: Point, a1: Point, b0: Point, b1: Point) -> (f64, Point, Point) {
+pub(super) fn seg_distance2(a0: Point, a1: Point, b0: Point, b1: Point) -> (f64, Point, Point) {
     let (d1, d2) = (cross(b0, b1, a0), cross(b0, b1, a1));
     let (d3, d4) = (cross(a0, a1, b0), cross(a0, a1, b1));
     if d1 * d2 < 0.0 && d3 * d4 < 0.0 {
@@ -715,26 +713,6 @@ fn seg_distance2_above(a0: Point, a1: Point, b0: Point, b1: Point, floor2: f64) 
         return g2;
     }
     seg_distance2(a0, a1, b0, b1).0
-}
-
-fn boxes_meet(a: &Bounds, b: &Bounds) -> bool {
-    a.min_x <= b.max_x && b.min_x <= a.max_x && a.min_y <= b.max_y && b.min_y <= a.max_y
-}
-
-fn find(parent: &mut [u32], mut i: u32) -> u32 {
-    while parent[i as usize] != i {
-        let g = parent[parent[i as usize] as usize];
-        parent[i as usize] = g;
-        i = g;
-    }
-    i
-}
-
-fn union(parent: &mut [u32], a: u32, b: u32) {
-    let (ra, rb) = (find(parent, a), find(parent, b));
-    if ra != rb {
-        parent[ra.max(rb) as usize] = ra.min(rb);
-    }
 }
 
 /// A uniform grid of square cells over a box.
@@ -781,7 +759,7 @@ impl Grid {
 mod tests {
     use super::*;
     use crate::image::{Contour, Turn};
-    use crate::raster::design_rows;
+    use crate::raster::design_window;
 
     /// Numbers in [0, 1) from a linear congruential generator (Knuth's MMIX constants), the
     /// same on every run.
@@ -872,8 +850,9 @@ mod tests {
             for k in 0..25u64 {
                 let objects = random_layer(seed * 1000 + k);
                 let map = DeviceMap::new(Point::new(0.0, 0.0), 260, 240, dpi, dpi * 1.1);
-                let spans = design_rows(&objects, &map, &[(0, map.height)]);
                 let n = objects.len() as u32;
+                let every: Vec<u32> = (0..n).collect();
+                let spans = design_window(&objects, &every, &map, (0, map.height), (0, map.width));
                 let mut pixel: Vec<u32> = (0..n).collect();
                 for (a, b) in spans.overlaps_on_rows(&[(0, map.height)]) {
                     union(&mut pixel, a, b);

@@ -46,8 +46,8 @@ impl PaintOp {
     }
 }
 
-/// The layer's spans as the renderer paints them, per row in drawing order, on the rows
-/// [`super::design_rows`] was asked for; [`DesignSpans::window_runs`] and
+/// The layer's spans as the renderer paints them, per row in drawing order, in the window
+/// [`super::design_window`] was asked for; [`DesignSpans::window_runs`] and
 /// [`DesignSpans::overlaps_on_rows`] paint them into runs and pairs (the process check's
 /// closed-gap search).
 #[derive(Debug, Clone, PartialEq, Eq)]

@@ -5,7 +5,7 @@
 //! - [`DeviceMap`]: board mm → device pixels of one film (separate x and y resolution,
 //!   mirror, stretch correction), serializable as an explicit affine.
 //! - [`render`]: objects in order → bitmap, by pixel centres, in parallel bands.
-//! - [`design_rows`]: the spans [`render`] paints on chosen rows ([`DesignSpans`]), which
+//! - [`design_window`]: the spans [`render`] paints in a window ([`DesignSpans`]), which
 //!   paint into which object each pixel shows.
 //! - [`morphology`]: grow/shrink the composed film by a disc, opening and closing.
 
@@ -22,4 +22,4 @@ pub(crate) use bitmap::fill_row_span;
 pub use bitmap::Bitmap;
 pub use design::{DesignSpans, Run};
 pub use device::{Affine, DeviceMap, FilmTooLarge, MM_PER_INCH};
-pub use render::{design_rows, design_window, render, render_with, RenderOptions};
+pub use render::{design_window, render, render_with, RenderOptions};

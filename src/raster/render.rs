@@ -112,16 +112,11 @@ pub fn render_with(objects: &[Object], map: &DeviceMap, opts: &RenderOptions) ->
 }
 
 /// The spans [`render`] paints for the layer, per row in drawing order ([`DesignSpans`]:
-/// which object each dark pixel shows, once painted into runs), on the given rows only
-/// (half-open ranges of film rows, in any order); every other row is empty. Only the objects
-/// reaching those rows are prepared: a few rows of a large layer cost little.
-pub fn design_rows(objects: &[Object], map: &DeviceMap, ranges: &[(usize, usize)]) -> DesignSpans {
-    design_in(objects, None, map, ranges, None)
-}
-
-/// [`design_rows`] for one window of the film: rows `rows.0..rows.1`, spans cut to columns
-/// `cols.0..cols.1`. `candidates` (indices into `objects`, in drawing order) must hold every
-/// object reaching the window; only those that do are prepared and painted.
+/// which object each dark pixel shows, once painted into runs), in one window of the film:
+/// rows `rows.0..rows.1`, spans cut to columns `cols.0..cols.1`; every other row is empty.
+/// `candidates` (indices into `objects`, in drawing order) must hold every object reaching
+/// the window; only those that do are prepared and painted, so a small window of a large
+/// layer costs little.
 pub fn design_window(
     objects: &[Object],
     candidates: &[u32],
@@ -129,114 +124,55 @@ pub fn design_window(
     rows: (usize, usize),
     cols: (usize, usize),
 ) -> DesignSpans {
-    design_in(objects, Some(candidates), map, &[rows], Some(cols))
-}
-
-fn design_in(
-    objects: &[Object],
-    candidates: Option<&[u32]>,
-    map: &DeviceMap,
-    ranges: &[(usize, usize)],
-    cols: Option<(usize, usize)>,
-) -> DesignSpans {
-    let mut merged: Vec<(usize, usize)> = ranges
-        .iter()
-        .map(|&(a, b)| (a, b.min(map.height)))
-        .filter(|&(a, b)| a < b)
-        .collect();
-    merged.sort_unstable();
-    let mut ranges: Vec<(usize, usize)> = Vec::new();
-    for (a, b) in merged {
-        match ranges.last_mut() {
-            Some(last) if a <= last.1 => last.1 = last.1.max(b),
-            _ => ranges.push((a, b)),
-        }
-    }
-    // Objects reaching some range, in drawing order, per range.
-    let reaches = |rows: (usize, usize)| {
-        let k = ranges.partition_point(|r| r.1 <= rows.0);
-        ranges.get(k).is_some_and(|r| r.0 < rows.1)
-    };
-    let all: Vec<u32>;
-    let candidates = match candidates {
-        Some(c) => c,
-        None => {
-            all = (0..objects.len() as u32).collect();
-            &all
-        }
-    };
+    let (r0, r1) = (rows.0.min(map.height), rows.1.min(map.height));
+    let (c0, c1) = cols;
     let prepared: Vec<Prepared> = candidates
         .par_iter()
         .filter_map(|&i| {
             let o = &objects[i as usize];
             let b = o.shape.bounds();
-            let rows = map.rows_touching(b.min_y - 1e-9, b.max_y + 1e-9)?;
-            if !reaches(rows) {
+            let (o0, o1) = map.rows_touching(b.min_y - 1e-9, b.max_y + 1e-9)?;
+            // The object's columns, a column more each way (mirrored like its spans).
+            let (x0, x1) = map.columns(b.min_x - 1e-9, b.max_x + 1e-9);
+            let (x0, x1) = if map.mirror {
+                (map.width.saturating_sub(x1), map.width.saturating_sub(x0))
+            } else {
+                (x0, x1)
+            };
+            if o1 <= r0 || o0 >= r1 || x1 + 1 < c0 || x0 > c1 + 1 {
                 return None;
-            }
-            if let Some((x0, x1)) = cols {
-                // The object's columns, a column more each way (mirrored like its spans).
-                let (c0, c1) = map.columns(b.min_x - 1e-9, b.max_x + 1e-9);
-                let (c0, c1) = if map.mirror {
-                    (map.width.saturating_sub(c1), map.width.saturating_sub(c0))
-                } else {
-                    (c0, c1)
-                };
-                if c1 + 1 < x0 || c0 > x1 + 1 {
-                    return None;
-                }
             }
             prepare_object(o, map, i)
         })
         .collect();
-    let rows_of: Vec<Vec<PaintOp>> = ranges
-        .par_iter()
-        .flat_map_iter(|&(a, b)| {
-            let list: Vec<&Prepared> = prepared
-                .iter()
-                .filter(|p| p.rows.0 < b && a < p.rows.1)
-                .collect();
-            let mut scratch = Scratch::default();
-            let mut spans = Vec::new();
-            let grid = map.grid();
-            (a..b)
-                .map(|row| {
-                    let mut ops = Vec::new();
-                    let y = grid.row_center_y(row);
-                    for p in list.iter().filter(|p| p.rows.0 <= row && row < p.rows.1) {
-                        shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
-                        for &(x0, x1) in spans.iter() {
-                            let (mut a, mut b) = if map.mirror {
-                                (map.width - x1, map.width - x0)
-                            } else {
-                                (x0, x1)
-                            };
-                            if let Some((c0, c1)) = cols {
-                                (a, b) = (a.max(c0), b.min(c1));
-                                if a >= b {
-                                    continue;
-                                }
-                            }
-                            ops.push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
-                        }
-                    }
-                    ops
-                })
-                .collect::<Vec<_>>()
-        })
-        .collect();
+    let mut scratch = Scratch::default();
+    let mut spans = Vec::new();
+    let mut ops = Vec::new();
+    let grid = map.grid();
     let mut design = DesignSpans::default();
-    let mut painted = rows_of.into_iter();
-    let mut k = 0;
     for row in 0..map.height {
-        while k < ranges.len() && ranges[k].1 <= row {
-            k += 1;
+        ops.clear();
+        if (r0..r1).contains(&row) {
+            let y = grid.row_center_y(row);
+            for p in prepared
+                .iter()
+                .filter(|p| p.rows.0 <= row && row < p.rows.1)
+            {
+                shapes::node_spans(&p.node, &grid, row, y, &mut scratch, &mut spans);
+                for &(x0, x1) in spans.iter() {
+                    let (a, b) = if map.mirror {
+                        (map.width - x1, map.width - x0)
+                    } else {
+                        (x0, x1)
+                    };
+                    let (a, b) = (a.max(c0), b.min(c1));
+                    if a < b {
+                        ops.push(PaintOp::new(a as u32, b as u32, p.index, p.dark));
+                    }
+                }
+            }
         }
-        if k < ranges.len() && ranges[k].0 <= row {
-            design.push_row(&painted.next().unwrap_or_default());
-        } else {
-            design.push_row(&[]);
-        }
+        design.push_row(&ops);
     }
     design
 }
@@ -344,18 +280,16 @@ mod tests {
             let mut map = DeviceMap::new(Point::new(0.0, 0.0), 40, 30, 254.0, 254.0);
             map.mirror = mirror;
             let film = render_with(&objects, &map, &RenderOptions::serial());
-            let spans = design_rows(&objects, &map, &[(0, map.height)]);
-            // Asked for some rows only (overlapping, unordered, beyond the film): those rows
-            // the same, every other row empty.
-            let some = design_rows(&objects, &map, &[(20, 25), (3, 8), (6, 10), (28, 40)]);
+            let every: Vec<u32> = (0..objects.len() as u32).collect();
+            let spans = design_window(&objects, &every, &map, (0, map.height), (0, map.width));
+            // Rows reaching beyond the film: those on it the same, every other row empty.
+            let some = design_window(&objects, &every, &map, (20, 40), (0, map.width));
             assert_eq!(some.height(), map.height);
             for j in 0..map.height {
-                let asked = (3..10).contains(&j) || (20..25).contains(&j) || j >= 28;
-                let want: &[_] = if asked { spans.row(j) } else { &[] };
+                let want: &[_] = if j >= 20 { spans.row(j) } else { &[] };
                 assert_eq!(some.row(j), want, "row {j}");
             }
             // A window: its rows, each span cut to its columns, nothing elsewhere.
-            let every: Vec<u32> = (0..objects.len() as u32).collect();
             let win = design_window(&objects, &every, &map, (5, 20), (10, 30));
             for j in 0..map.height {
                 let want: Vec<PaintOp> = if (5..20).contains(&j) {

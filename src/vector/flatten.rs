@@ -125,6 +125,15 @@ impl Flattener {
         }
     }
 
+    /// A flattener whose output is in board millimetres (one unit per mm, y up, no mirror):
+    /// for geometry on the drawn shapes rather than on a film.
+    pub fn board_mm(tolerance_mm: f64) -> Flattener {
+        Flattener::new(
+            &DeviceMap::new(Point::new(0.0, 0.0), 0, 0, 25.4, 25.4),
+            tolerance_mm,
+        )
+    }
+
     /// The grid of the boolean operations for this flattener's tolerance.
     pub fn grid(&self) -> ops::Grid {
         ops::Grid::for_tolerance(self.tolerance_mm)
